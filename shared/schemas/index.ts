@@ -1,0 +1,4 @@
+export * from './common'
+export * from './auth'
+export * from './farms'
+export * from './users'
