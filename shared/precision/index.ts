@@ -1,3 +1,52 @@
 // The precision engine: pure functions from orbit data and field geometry to DOP and
-// expected errors. See ../../DEVELOPERS.md and the engine specification.
-export {}
+// expected errors (see ENGINE.md). No I/O, no clock, no Node-only imports: usable in
+// Node (jobs, CLI) and in a browser Web Worker. Inputs and outputs are plain data.
+//
+// Typical use:
+//   const { satellites, errors } = parseOrbitFile(text)            // or nominalConstellation('all')
+//   const result = forecastField({ field, obstructions, antennaHeightM: 3.5, satellites,
+//     startMs, hours: 168, stepMin: 5, maskDeg: 10, sigmaUereM: 0.012, workTypes })
+//   const view = skyView({ point, atMs, satellites, obstructions, antennaHeightM: 3.5 })
+
+export { dopFromDirections, elevationWeight, expectedHorizontal95M, expectedVertical95M, invertSpdInPlace } from './dop'
+export type { DopValues, DopWeights, SatDirection } from './dop'
+export { geodeticToEcef, ecefToGeodetic, ecefToEnu, enuBasis, enuToAzEl, lookAngles, localPlane, toPlane, fromPlane } from './geodesy'
+export type { GeodeticPoint, Ecef, LocalPlane } from './geodesy'
+export { horizonMask, horizonMaskInto, readObstructions, isLeafless } from './horizon'
+export type { ObstructionShape, ObstructionKind } from './horizon'
+export { GNSS_SYSTEMS, parseSystemName, systemFromObjectName } from './systems'
+export type { GnssSystem } from './systems'
+export { parseOrbitFile, detectOrbitFormat, formatOrbitIssue } from './orbits/parse'
+export { parseTle, tleChecksum } from './orbits/tle'
+export { parseOmmJson, parseOmmXml } from './orbits/omm'
+export { parseYuma } from './orbits/yuma'
+export { nominalConstellation, NOMINAL_NAMES, GPS_BASELINE_SLOTS } from './orbits/nominal'
+export type { NominalName } from './orbits/nominal'
+export { keplerPositionInto, resolveKeplerOrbit, eccentricAnomaly } from './orbits/kepler'
+export type { Satellite, Orbit, KeplerOrbit, Sgp4Orbit, OrbitSource, OrbitParseResult, OrbitRecordIssue } from './orbits/types'
+export { satellitePositions, satrecOf } from './propagation'
+export type { BulkRuntime, PropagationOptions } from './propagation'
+export { gmstRad, gpsMinusUtcS, utcMsToGpsSeconds, gpsSecondsToUtcMs, resolveGpsWeek, GPS_EPOCH_MS } from './time'
+export { fieldSamplePoints, fieldPolygons } from './sampling'
+export type { SamplePoint, FieldGeometry } from './sampling'
+export { forecastField, forecastPoint, skyView, hourState } from './forecast'
+export type {
+  FieldForecastInput,
+  FieldForecast,
+  HourAggregate,
+  HourState,
+  MedianMax,
+  Outage,
+  PointEpoch,
+  PointForecastInput,
+  PointHourDetail,
+  SatStatus,
+  SkyViewInput,
+  SkyView,
+  SkySatellite,
+  SkySettings,
+  StageTimes,
+  WorkType,
+} from './forecast'
+export { DEMO_SERVICE_LEVELS, DEMO_WORK_TYPES } from './defaults'
+export * as constants from './constants'

@@ -1,0 +1,142 @@
+/**
+ * Propagation: ECEF positions of every satellite at every epoch, computed once and
+ * shared by all sample points.
+ *
+ * - SGP4/SDP4 element sets through satellite.js (TEME output, rotated to earth-fixed
+ *   by GMST: r_PEF = R3(GMST) r_TEME, Vallado, Fundamentals of Astrodynamics, Example
+ *   3-15; polar motion is ignored). Either the JavaScript `sgp4` loop or satellite.js's
+ *   bulk WASM propagator (when the caller hands in its runtime; creating it is async).
+ * - Keplerian orbits (almanac, nominal): IS-GPS-200 Table 20-IV, see orbits/kepler.ts.
+ *
+ * Layout of the result: Float64Array, index ((epoch * nSat) + sat) * 3 + axis, metres.
+ * A satellite SGP4 cannot place at an epoch gets NaN.
+ */
+import { BulkPropagator, EcfPositionCalculator, EciBaseCalculator, GmstCalculator, json2satrec, sgp4, twoline2satrec, type SatRec, type createSingleThreadRuntime } from 'satellite.js'
+import { keplerPositionInto, resolveKeplerOrbit } from './orbits/kepler'
+import type { KeplerOrbit, Satellite, Sgp4Orbit } from './orbits/types'
+import { gmstRad } from './time'
+
+/** The runtime of satellite.js's bulk WASM propagator (from `createSingleThreadRuntime()`). */
+export type BulkRuntime = Awaited<ReturnType<typeof createSingleThreadRuntime>>
+
+/** How SGP4 satellites are propagated. */
+export interface PropagationOptions {
+  /** When given, SGP4 satellites go through satellite.js's BulkPropagator on this runtime. */
+  bulkRuntime?: BulkRuntime
+}
+
+/** Initialises SGP4 from a satellite's stored elements. */
+export function satrecOf(orbit: Sgp4Orbit): SatRec {
+  if (orbit.tle) return twoline2satrec(orbit.tle[0], orbit.tle[1])
+  if (orbit.omm) return json2satrec(orbit.omm)
+  throw new Error('SGP4 orbit without elements')
+}
+
+/**
+ * ECEF positions (m) of all satellites at all epochs.
+ *
+ * @example
+ * const epochs = [Date.UTC(2026, 11, 2), Date.UTC(2026, 11, 2, 0, 5)]
+ * const pos = satellitePositions(nominalConstellation('gps'), epochs)
+ * // pos[(1 * 24 + 3) * 3 + 2] = z (m) of the fourth satellite at the second epoch
+ */
+export function satellitePositions(
+  sats: readonly Satellite[],
+  epochsMs: ArrayLike<number>,
+  options: PropagationOptions = {},
+): Float64Array {
+  const nSat = sats.length
+  const nEp = epochsMs.length
+  const out = new Float64Array(nSat * nEp * 3)
+  if (nEp === 0 || nSat === 0) return out
+  const keplerIdx: number[] = []
+  const keplerOrbits: KeplerOrbit[] = []
+  const sgpIdx: number[] = []
+  const satrecs: SatRec[] = []
+  sats.forEach((s, i) => {
+    if (s.orbit.kind === 'kepler') {
+      keplerIdx.push(i)
+      keplerOrbits.push(resolveKeplerOrbit(s.orbit, epochsMs[0]))
+    } else {
+      sgpIdx.push(i)
+      satrecs.push(satrecOf(s.orbit))
+    }
+  })
+  for (let e = 0; e < nEp; e++) {
+    const t = epochsMs[e]
+    const base = e * nSat * 3
+    for (let k = 0; k < keplerIdx.length; k++) keplerPositionInto(keplerOrbits[k], t, out, base + keplerIdx[k] * 3)
+  }
+  if (satrecs.length > 0) {
+    if (options.bulkRuntime) sgp4Bulk(satrecs, sgpIdx, epochsMs, nSat, out, options.bulkRuntime)
+    else sgp4Loop(satrecs, sgpIdx, epochsMs, nSat, out)
+  }
+  return out
+}
+
+function sgp4Loop(satrecs: SatRec[], idx: number[], epochsMs: ArrayLike<number>, nSat: number, out: Float64Array): void {
+  const nEp = epochsMs.length
+  for (let e = 0; e < nEp; e++) {
+    const t = epochsMs[e]
+    const g = gmstRad(t)
+    const cg = Math.cos(g)
+    const sg = Math.sin(g)
+    const jd = t / 86_400_000 + 2440587.5
+    const base = e * nSat * 3
+    for (let k = 0; k < satrecs.length; k++) {
+      const rec = satrecs[k]
+      const o = base + idx[k] * 3
+      const pv = sgp4(rec, (jd - rec.jdsatepoch) * 1440)
+      if (!pv || rec.error !== 0) {
+        out[o] = out[o + 1] = out[o + 2] = NaN
+        continue
+      }
+      const p = pv.position
+      out[o] = (cg * p.x + sg * p.y) * 1000
+      out[o + 1] = (-sg * p.x + cg * p.y) * 1000
+      out[o + 2] = p.z * 1000
+    }
+  }
+}
+
+function sgp4Bulk(
+  satrecs: SatRec[],
+  idx: number[],
+  epochsMs: ArrayLike<number>,
+  nSat: number,
+  out: Float64Array,
+  runtime: BulkRuntime,
+): void {
+  const nEp = epochsMs.length
+  const dates: Date[] = new Array(nEp)
+  for (let e = 0; e < nEp; e++) dates[e] = new Date(epochsMs[e])
+  const bulk = new BulkPropagator({
+    runtime,
+    calculators: [new EciBaseCalculator(), new GmstCalculator(), new EcfPositionCalculator()],
+    satRecsCount: satrecs.length,
+    datesCount: nEp,
+  })
+  try {
+    bulk.setSatRecs(satrecs)
+    bulk.setDates(dates)
+    bulk.run()
+    const raw = bulk.getRawOutput()
+    const pos = raw.ecfPosition
+    const err = raw.eci.error
+    for (let k = 0; k < satrecs.length; k++) {
+      for (let e = 0; e < nEp; e++) {
+        const src = (k * nEp + e) * 3
+        const o = (e * nSat + idx[k]) * 3
+        if (err[k * nEp + e] !== 0) {
+          out[o] = out[o + 1] = out[o + 2] = NaN
+          continue
+        }
+        out[o] = pos[src] * 1000
+        out[o + 1] = pos[src + 1] * 1000
+        out[o + 2] = pos[src + 2] * 1000
+      }
+    }
+  } finally {
+    bulk.dispose()
+  }
+}
