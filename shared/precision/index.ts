@@ -24,7 +24,7 @@ export { nominalConstellation, NOMINAL_NAMES, GPS_BASELINE_SLOTS } from './orbit
 export type { NominalName } from './orbits/nominal'
 export { keplerPositionInto, resolveKeplerOrbit, eccentricAnomaly } from './orbits/kepler'
 export type { Satellite, Orbit, KeplerOrbit, Sgp4Orbit, OrbitSource, OrbitParseResult, OrbitRecordIssue } from './orbits/types'
-export { satellitePositions, satrecOf } from './propagation'
+export { satellitePositions, satrecOf, temeToEcef } from './propagation'
 export type { BulkRuntime, PropagationOptions } from './propagation'
 export { gmstRad, gpsMinusUtcS, utcMsToGpsSeconds, gpsSecondsToUtcMs, resolveGpsWeek, GPS_EPOCH_MS } from './time'
 export { fieldSamplePoints, fieldPolygons } from './sampling'

@@ -33,6 +33,21 @@ export function satrecOf(orbit: Sgp4Orbit): SatRec {
 }
 
 /**
+ * TEME -> earth-fixed (pseudo-body-fixed) rotation by GMST: r_PEF = R3(GMST) r_TEME.
+ * Units are kept. Polar motion is ignored.
+ *
+ * @example
+ * temeToEcef([5094.18016210, 6127.64465950, 6380.34453270], Date.UTC(2004, 3, 6, 7, 51, 28, 386))
+ * // -> about [-1033.48, 7901.30, 6380.34]
+ */
+export function temeToEcef(r: [number, number, number], utcMs: number): [number, number, number] {
+  const g = gmstRad(utcMs)
+  const cg = Math.cos(g)
+  const sg = Math.sin(g)
+  return [cg * r[0] + sg * r[1], -sg * r[0] + cg * r[1], r[2]]
+}
+
+/**
  * ECEF positions (m) of all satellites at all epochs.
  *
  * @example
