@@ -28,6 +28,21 @@ const LABELS: Array<[RegExp, Key]> = [
   [/^week$/, 'week'],
 ]
 const ALL_KEYS: Key[] = LABELS.map(([, k]) => k)
+const FIELD_NAMES: Record<Key, string> = {
+  id: 'ID',
+  health: 'Health',
+  e: 'Eccentricity',
+  toa: 'Time of Applicability',
+  i: 'Orbital Inclination',
+  omegaDot: 'Rate of Right Ascen',
+  sqrtA: 'SQRT(A)',
+  omega0: 'Right Ascen at Week',
+  omega: 'Argument of Perigee',
+  m0: 'Mean Anom',
+  af0: 'Af0',
+  af1: 'Af1',
+  week: 'week',
+}
 const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/
 
 /** Reads a YUMA almanac. Each bad record is reported with its record and line. */
@@ -84,7 +99,7 @@ export function parseYuma(text: string): { satellites: Satellite[]; errors: Orbi
     }
     const missing = ALL_KEYS.filter((k) => !rec.values[k])
     if (missing.length > 0) {
-      errors.push({ record: rec.record, line: rec.line, satellite: idText, message: `missing field(s): ${missing.join(', ')}` })
+      errors.push({ record: rec.record, line: rec.line, satellite: idText, message: `missing field(s): ${missing.map((k) => FIELD_NAMES[k]).join(', ')}` })
       continue
     }
     const v = (k: Key) => rec.values[k]!.v
