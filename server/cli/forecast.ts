@@ -95,12 +95,14 @@ function loadOrbits(sources: string[], system: GnssSystem | undefined): Satellit
       throw new UsageError(`--orbits ${src}: cannot read (${(e as NodeJS.ErrnoException).code ?? String(e)})`)
     }
     const result = parseOrbitFile(text, { system })
-    for (const issue of result.errors) process.stderr.write(`forecast: ${src}: skipped ${formatOrbitIssue(issue)}\n`)
-    for (const note of result.notes) process.stderr.write(`forecast: ${src}: ${formatOrbitIssue(note)}\n`)
     if (result.satellites.length === 0) {
       const first = result.errors[0]
-      throw new UsageError(`--orbits ${src}: no usable satellite${first ? ` (${formatOrbitIssue(first)})` : ''}`)
+      const more = result.errors.length > 1 ? `; ${result.errors.length - 1} more record(s) skipped` : ''
+      throw new UsageError(`--orbits ${src}: no usable satellite${first ? ` (${formatOrbitIssue(first)}${more})` : ''}`)
     }
+    // Warnings on stderr; the forecast goes on with the good records.
+    for (const issue of result.errors) process.stderr.write(`forecast: ${src}: skipped ${formatOrbitIssue(issue)}\n`)
+    for (const note of result.notes) process.stderr.write(`forecast: ${src}: ${formatOrbitIssue(note)}\n`)
     sats.push(...result.satellites)
   }
   return sats

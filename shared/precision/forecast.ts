@@ -102,6 +102,25 @@ export interface FieldForecastInput extends SkySettings {
   sampleCount?: number
   /** also return per-sample-point values for the clock hour starting at this UTC ms */
   detailHourMs?: number
+  /** also return the raw per-sample values (typed arrays, transferable) */
+  includeSamples?: boolean
+}
+
+/**
+ * Raw per-sample values, index epoch * points + point. hdop/vdop/pdop are NaN without
+ * a fix; n1* are the worst values with one satellite lost, Infinity when that can
+ * lose the fix, NaN without a fix.
+ */
+export interface SampleArrays {
+  epochsMs: Float64Array
+  points: number
+  satellites: Uint16Array
+  hdop: Float64Array
+  vdop: Float64Array
+  pdop: Float64Array
+  n1Hdop: Float64Array
+  n1Vdop: Float64Array
+  n1Pdop: Float64Array
 }
 
 /** A median and a maximum. */
@@ -166,6 +185,7 @@ export interface FieldForecast {
   detail?: { hourStartMs: number; points: PointHourDetail[] }
   /** satellite-point evaluations (epochs x points x satellites) */
   evaluations: number
+  samples?: SampleArrays
   stageTimes?: StageTimes
 }
 
@@ -772,6 +792,9 @@ export function forecastField(input: FieldForecastInput, now?: () => number): Fi
     satellitesUsed: nSat,
     detail,
     evaluations: nEp * nPts * nSat,
+    samples: input.includeSamples
+      ? { epochsMs: epochs, points: nPts, satellites: r.nSats, hdop: r.hdop, vdop: r.vdop, pdop: r.pdop, n1Hdop: r.n1h, n1Vdop: r.n1v, n1Pdop: r.n1p }
+      : undefined,
     stageTimes: now ? { propagationMs: t1 - t0, masksMs: t2 - t1, dopMs: t3 - t2, aggregationMs: t4 - t3 } : undefined,
   }
 }

@@ -40,6 +40,7 @@ export type {
   PointEpoch,
   PointForecastInput,
   PointHourDetail,
+  SampleArrays,
   SatStatus,
   SkyViewInput,
   SkyView,
