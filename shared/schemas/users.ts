@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { roleSchema, unitSystemSchema, type Role, type UnitSystem } from './common'
+import { listQuerySchema, roleSchema, unitSystemSchema, type Role, type UnitSystem } from './common'
 import { emailSchema } from './auth'
 
 /** Admin invites a user: an e-mail with a set-password link goes out. */
@@ -33,3 +33,18 @@ export interface User {
   lastSignInAt: string | null
   createdAt: string
 }
+
+/** Columns the Users table can be sorted by. */
+export const userSortKeys = ['name', 'email', 'role', 'active', 'createdAt', 'lastSignInAt'] as const
+export type UserSortKey = (typeof userSortKeys)[number]
+
+/** GET /api/users: paging, sorting, search (name or e-mail) and filters. */
+export const userListQuerySchema = listQuerySchema.extend({
+  sort: z.enum(userSortKeys, { error: `Sort by one of: ${userSortKeys.join(', ')}` }).optional(),
+  role: roleSchema.optional(),
+  active: z
+    .enum(['true', 'false'], { error: 'Use true or false' })
+    .transform((v) => v === 'true')
+    .optional(),
+})
+export type UserListQuery = z.infer<typeof userListQuerySchema>

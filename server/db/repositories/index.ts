@@ -1,0 +1,39 @@
+// All repositories over one Drizzle handle, and a Store that runs work in a transaction.
+import { sql } from 'drizzle-orm'
+import type { Database, DbOrTx } from '../index.ts'
+import { businessRepository } from './business.ts'
+import { farmsRepository } from './farms.ts'
+import { mailboxRepository } from './mailbox.ts'
+import { sessionsRepository } from './sessions.ts'
+import { tokensRepository } from './tokens.ts'
+import { usersRepository } from './users.ts'
+
+export function createRepositories(db: DbOrTx) {
+  return {
+    users: usersRepository(db),
+    farms: farmsRepository(db),
+    sessions: sessionsRepository(db),
+    tokens: tokensRepository(db),
+    mailbox: mailboxRepository(db),
+    business: businessRepository(db),
+  }
+}
+export type Repositories = ReturnType<typeof createRepositories>
+
+/** What services receive: repositories, transactions and a liveness check. */
+export interface Store {
+  repos: Repositories
+  /** Runs `work` in one transaction: everything it writes is kept, or nothing. */
+  transaction<T>(work: (repos: Repositories) => Promise<T>): Promise<T>
+  ping(): Promise<void>
+}
+
+export function createStore(db: Database): Store {
+  return {
+    repos: createRepositories(db),
+    transaction: (work) => db.transaction((tx) => work(createRepositories(tx))),
+    ping: async () => {
+      await db.execute(sql`SELECT 1`)
+    },
+  }
+}

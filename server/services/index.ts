@@ -1,0 +1,17 @@
+import { createAuthService } from './auth.ts'
+import type { ServiceContext } from './context.ts'
+import { createFarmsService } from './farms.ts'
+import { createMailboxService } from './mailbox.ts'
+import { createMetaService } from './meta.ts'
+import { createUsersService } from './users.ts'
+
+export function createServices(ctx: ServiceContext) {
+  return {
+    auth: createAuthService(ctx),
+    farms: createFarmsService(ctx),
+    users: createUsersService(ctx),
+    mailbox: createMailboxService(ctx),
+    meta: createMetaService(ctx),
+  }
+}
+export type Services = ReturnType<typeof createServices>
