@@ -323,218 +323,310 @@ function evaluateSamples(
   const slackRad = 2 * (spread / 6.3e6 + spread / 1.0e6) + 1e-6
   const sinPre = Math.sin(Math.max(maskDeg * DEG - slackRad, -Math.PI / 2))
   const candidates = new Int32Array(nSat)
-  for (let e = 0; e < nEp; e++) {
-    const pos0 = e * nSat * 3
-    const off0 = e * nSat
-    const set = setOfEpoch[e]
-    const mSin = maskSin[set]
-    const mMax = maskMaxSin[set]
-    let nCand = 0
-    for (let s = 0; s < nSat; s++) {
-      if (offFlags[off0 + s] !== 0) continue
+  const oSats = out.nSats
+  const oH = out.hdop
+  const oV = out.vdop
+  const oP = out.pdop
+  const oN1h = out.n1h
+  const oN1v = out.n1v
+  const oN1p = out.n1p
+  const kernel: Kernel = { positions, nSat, sysOf, offFlags, nPts, basis, pointEcef, maskSin, maskMaxSin, setOfEpoch, weighted, sinMask2, ge, gn, gu, gw, gs, bx, by, bz, dw, cnt, cx, cy, cz, mx, my, mz, cux, cuy, cuz, sinPre, candidates, oSats, oH, oV, oP, oN1h, oN1v, oN1p, NS }
+  // One call per epoch: the function gets optimised after a few epochs instead of
+  // waiting for on-stack replacement of one long loop.
+  for (let e = 0; e < nEp; e++) evaluateEpoch(kernel, e)
+}
+
+/** Working state of the hot loop (typed arrays and constants), built once per forecast. */
+interface Kernel {
+  positions: Float64Array
+  nSat: number
+  sysOf: Uint8Array
+  offFlags: Uint8Array
+  nPts: number
+  basis: Float64Array
+  pointEcef: Float64Array
+  maskSin: Float64Array[]
+  maskMaxSin: Float64Array[]
+  setOfEpoch: Uint16Array
+  weighted: boolean
+  sinMask2: number
+  ge: Float64Array
+  gn: Float64Array
+  gu: Float64Array
+  gw: Float64Array
+  gs: Uint8Array
+  bx: Float64Array
+  by: Float64Array
+  bz: Float64Array
+  dw: Float64Array
+  cnt: Int32Array
+  cx: Float64Array
+  cy: Float64Array
+  cz: Float64Array
+  mx: number
+  my: number
+  mz: number
+  cux: number
+  cuy: number
+  cuz: number
+  sinPre: number
+  candidates: Int32Array
+  oSats: Uint16Array
+  oH: Float64Array
+  oV: Float64Array
+  oP: Float64Array
+  oN1h: Float64Array
+  oN1v: Float64Array
+  oN1p: Float64Array
+  NS: number
+}
+
+/** Visibility, DOP and N-1 margin of every point at epoch e. */
+function evaluateEpoch(k0: Kernel, e: number): void {
+  const { positions, nSat, sysOf, offFlags, nPts, basis, pointEcef, maskSin, maskMaxSin, setOfEpoch, weighted, sinMask2, ge, gn, gu, gw, gs, bx, by, bz, dw, cnt, cx, cy, cz, mx, my, mz, cux, cuy, cuz, sinPre, candidates, oSats, oH, oV, oP, oN1h, oN1v, oN1p, NS } = k0
+  const pos0 = e * nSat * 3
+  const off0 = e * nSat
+  const set = setOfEpoch[e]
+  const mSin = maskSin[set]
+  const mMax = maskMaxSin[set]
+  let nCand = 0
+  for (let s = 0; s < nSat; s++) {
+    if (offFlags[off0 + s] !== 0) continue
+    const o = pos0 + 3 * s
+    const dx = positions[o] - mx
+    const dy = positions[o + 1] - my
+    const dz = positions[o + 2] - mz
+    const up = cux * dx + cuy * dy + cuz * dz
+    const r = Math.sqrt(dx * dx + dy * dy + dz * dz)
+    if (up >= sinPre * r) candidates[nCand++] = s
+  }
+  for (let p = 0; p < nPts; p++) {
+    const px = pointEcef[3 * p]
+    const py = pointEcef[3 * p + 1]
+    const pz = pointEcef[3 * p + 2]
+    const b9 = 9 * p
+    const ex = basis[b9]
+    const ey = basis[b9 + 1]
+    const nx = basis[b9 + 3]
+    const ny = basis[b9 + 4]
+    const nz = basis[b9 + 5]
+    const ux = basis[b9 + 6]
+    const uy = basis[b9 + 7]
+    const uz = basis[b9 + 8]
+    const maxSinH = mMax[p]
+    const maskBase = p * 360
+    let a00 = 0, a01 = 0, a02 = 0, a11 = 0, a12 = 0, a22 = 0
+    cnt.fill(0)
+    let nv = 0
+    for (let c = 0; c < nCand; c++) {
+      const s = candidates[c]
       const o = pos0 + 3 * s
-      const dx = positions[o] - mx
-      const dy = positions[o + 1] - my
-      const dz = positions[o + 2] - mz
-      const up = cux * dx + cuy * dy + cuz * dz
-      const r = Math.sqrt(dx * dx + dy * dy + dz * dz)
-      if (up >= sinPre * r) candidates[nCand++] = s
+      const dx = positions[o] - px
+      const dy = positions[o + 1] - py
+      const dz = positions[o + 2] - pz
+      const up = ux * dx + uy * dy + uz * dz
+      if (!(up > 0)) continue
+      const r2 = dx * dx + dy * dy + dz * dz
+      if (up * up < sinMask2 * r2) continue
+      const inv = 1 / Math.sqrt(r2)
+      const su = up * inv
+      const le = (ex * dx + ey * dy) * inv
+      const ln = (nx * dx + ny * dy + nz * dz) * inv
+      if (su < maxSinH) {
+        let az = Math.atan2(le, ln) * RAD
+        if (az < 0) az += 360
+        let bin = az | 0
+        if (bin >= 360) bin = 359
+        if (su < mSin[maskBase + bin]) continue
+      }
+      const w = weighted ? elevationWeight(su) : 1
+      const sys = sysOf[s]
+      ge[nv] = le
+      gn[nv] = ln
+      gu[nv] = su
+      gw[nv] = w
+      gs[nv] = sys
+      nv++
+      const we = w * le
+      const wn = w * ln
+      const wu = w * su
+      a00 += we * le
+      a01 += we * ln
+      a02 += we * su
+      a11 += wn * ln
+      a12 += wn * su
+      a22 += wu * su
+      if (cnt[sys] === 0) {
+        bx[sys] = 0
+        by[sys] = 0
+        bz[sys] = 0
+        dw[sys] = 0
+      }
+      cnt[sys]++
+      bx[sys] += we
+      by[sys] += wn
+      bz[sys] += wu
+      dw[sys] += w
     }
-    for (let p = 0; p < nPts; p++) {
-      const px = pointEcef[3 * p]
-      const py = pointEcef[3 * p + 1]
-      const pz = pointEcef[3 * p + 2]
-      const b9 = 9 * p
-      const ex = basis[b9]
-      const ey = basis[b9 + 1]
-      const nx = basis[b9 + 3]
-      const ny = basis[b9 + 4]
-      const nz = basis[b9 + 5]
-      const ux = basis[b9 + 6]
-      const uy = basis[b9 + 7]
-      const uz = basis[b9 + 8]
-      const maxSinH = mMax[p]
-      const maskBase = p * 360
-      let a00 = 0, a01 = 0, a02 = 0, a11 = 0, a12 = 0, a22 = 0
-      cnt.fill(0)
-      let nv = 0
-      for (let c = 0; c < nCand; c++) {
-        const s = candidates[c]
-        const o = pos0 + 3 * s
-        const dx = positions[o] - px
-        const dy = positions[o + 1] - py
-        const dz = positions[o + 2] - pz
-        const up = ux * dx + uy * dy + uz * dz
-        if (!(up > 0)) continue
-        const r2 = dx * dx + dy * dy + dz * dz
-        if (up * up < sinMask2 * r2) continue
-        const inv = 1 / Math.sqrt(r2)
-        const su = up * inv
-        const le = (ex * dx + ey * dy) * inv
-        const ln = (nx * dx + ny * dy + nz * dz) * inv
-        if (su < maxSinH) {
-          let az = Math.atan2(le, ln) * RAD
-          if (az < 0) az += 360
-          let bin = az | 0
-          if (bin >= 360) bin = 359
-          if (su < mSin[maskBase + bin]) continue
-        }
-        const w = weighted ? elevationWeight(su) : 1
-        const sys = sysOf[s]
-        ge[nv] = le
-        gn[nv] = ln
-        gu[nv] = su
-        gw[nv] = w
-        gs[nv] = sys
-        nv++
-        const we = w * le
-        const wn = w * ln
-        const wu = w * su
-        a00 += we * le
-        a01 += we * ln
-        a02 += we * su
-        a11 += wn * ln
-        a12 += wn * su
-        a22 += wu * su
-        if (cnt[sys] === 0) {
-          bx[sys] = 0
-          by[sys] = 0
-          bz[sys] = 0
-          dw[sys] = 0
-        }
-        cnt[sys]++
-        bx[sys] += we
-        by[sys] += wn
-        bz[sys] += wu
-        dw[sys] += w
+    const idx = e * nPts + p
+    oSats[idx] = nv
+    let k = 0
+    for (let s = 0; s < NS; s++) {
+      if (cnt[s] === 0) continue
+      k++
+      const inv = 1 / dw[s]
+      cx[s] = bx[s] * inv
+      cy[s] = by[s] * inv
+      cz[s] = bz[s] * inv
+      a00 -= bx[s] * cx[s]
+      a01 -= bx[s] * cy[s]
+      a02 -= bx[s] * cz[s]
+      a11 -= by[s] * cy[s]
+      a12 -= by[s] * cz[s]
+      a22 -= bz[s] * cz[s]
+    }
+    if (nv < 3 + k) {
+      oH[idx] = oV[idx] = oP[idx] = NaN
+      oN1h[idx] = oN1v[idx] = oN1p[idx] = NaN
+      continue
+    }
+    // Cholesky of the 3x3 Schur complement, then its inverse.
+    const tol = 1e-10 * Math.max(a00, a11, a22, 1e-300)
+    const l00s = a00
+    if (!(l00s > tol)) {
+      oH[idx] = oV[idx] = oP[idx] = NaN
+      oN1h[idx] = oN1v[idx] = oN1p[idx] = NaN
+      continue
+    }
+    const l00 = Math.sqrt(l00s)
+    const l10 = a01 / l00
+    const l20 = a02 / l00
+    const d11 = a11 - l10 * l10
+    if (!(d11 > tol)) {
+      oH[idx] = oV[idx] = oP[idx] = NaN
+      oN1h[idx] = oN1v[idx] = oN1p[idx] = NaN
+      continue
+    }
+    const l11 = Math.sqrt(d11)
+    const l21 = (a12 - l20 * l10) / l11
+    const d22 = a22 - l20 * l20 - l21 * l21
+    if (!(d22 > tol)) {
+      oH[idx] = oV[idx] = oP[idx] = NaN
+      oN1h[idx] = oN1v[idx] = oN1p[idx] = NaN
+      continue
+    }
+    const l22 = Math.sqrt(d22)
+    const m00 = 1 / l00
+    const m11 = 1 / l11
+    const m22 = 1 / l22
+    const m10 = (-l10 * m00) / l11
+    const m21 = (-l21 * m11) / l22
+    const m20 = -(l20 * m00 + l21 * m10) / l22
+    const q00 = m00 * m00 + m10 * m10 + m20 * m20
+    const q11 = m11 * m11 + m21 * m21
+    const q22 = m22 * m22
+    const q01 = m10 * m11 + m20 * m21
+    const q02 = m20 * m22
+    const q12 = m21 * m22
+    const h2 = q00 + q11
+    oH[idx] = Math.sqrt(h2)
+    oV[idx] = Math.sqrt(q22)
+    oP[idx] = Math.sqrt(h2 + q22)
+    // N-1: worst case over single removals.
+    let worstH2 = h2
+    let worstV2 = q22
+    let worstP2 = h2 + q22
+    let lost = false
+    for (let j = 0; j < nv; j++) {
+      const s = gs[j]
+      if (cnt[s] === 1) continue // position block unchanged
+      if (nv - 1 < 3 + k) {
+        lost = true
+        break
       }
-      const idx = e * nPts + p
-      out.nSats[idx] = nv
-      let k = 0
-      for (let s = 0; s < NS; s++) {
-        if (cnt[s] === 0) continue
-        k++
-        const inv = 1 / dw[s]
-        cx[s] = bx[s] * inv
-        cy[s] = by[s] * inv
-        cz[s] = bz[s] * inv
-        a00 -= bx[s] * cx[s]
-        a01 -= bx[s] * cy[s]
-        a02 -= bx[s] * cz[s]
-        a11 -= by[s] * cy[s]
-        a12 -= by[s] * cz[s]
-        a22 -= bz[s] * cz[s]
+      const w = gw[j]
+      const alpha = (w * dw[s]) / (dw[s] - w)
+      const v0 = ge[j] - cx[s]
+      const v1 = gn[j] - cy[s]
+      const v2 = gu[j] - cz[s]
+      const t0 = q00 * v0 + q01 * v1 + q02 * v2
+      const t1 = q01 * v0 + q11 * v1 + q12 * v2
+      const t2 = q02 * v0 + q12 * v1 + q22 * v2
+      const den = 1 - alpha * (v0 * t0 + v1 * t1 + v2 * t2)
+      if (!(den > 1e-9)) {
+        lost = true
+        break
       }
-      if (nv < 3 + k) {
-        out.hdop[idx] = out.vdop[idx] = out.pdop[idx] = NaN
-        out.n1h[idx] = out.n1v[idx] = out.n1p[idx] = NaN
-        continue
-      }
-      // Cholesky of the 3x3 Schur complement, then its inverse.
-      const tol = 1e-10 * Math.max(a00, a11, a22, 1e-300)
-      const l00s = a00
-      if (!(l00s > tol)) {
-        out.hdop[idx] = out.vdop[idx] = out.pdop[idx] = NaN
-        out.n1h[idx] = out.n1v[idx] = out.n1p[idx] = NaN
-        continue
-      }
-      const l00 = Math.sqrt(l00s)
-      const l10 = a01 / l00
-      const l20 = a02 / l00
-      const d11 = a11 - l10 * l10
-      if (!(d11 > tol)) {
-        out.hdop[idx] = out.vdop[idx] = out.pdop[idx] = NaN
-        out.n1h[idx] = out.n1v[idx] = out.n1p[idx] = NaN
-        continue
-      }
-      const l11 = Math.sqrt(d11)
-      const l21 = (a12 - l20 * l10) / l11
-      const d22 = a22 - l20 * l20 - l21 * l21
-      if (!(d22 > tol)) {
-        out.hdop[idx] = out.vdop[idx] = out.pdop[idx] = NaN
-        out.n1h[idx] = out.n1v[idx] = out.n1p[idx] = NaN
-        continue
-      }
-      const l22 = Math.sqrt(d22)
-      const m00 = 1 / l00
-      const m11 = 1 / l11
-      const m22 = 1 / l22
-      const m10 = (-l10 * m00) / l11
-      const m21 = (-l21 * m11) / l22
-      const m20 = -(l20 * m00 + l21 * m10) / l22
-      const q00 = m00 * m00 + m10 * m10 + m20 * m20
-      const q11 = m11 * m11 + m21 * m21
-      const q22 = m22 * m22
-      const q01 = m10 * m11 + m20 * m21
-      const q02 = m20 * m22
-      const q12 = m21 * m22
-      const h2 = q00 + q11
-      out.hdop[idx] = Math.sqrt(h2)
-      out.vdop[idx] = Math.sqrt(q22)
-      out.pdop[idx] = Math.sqrt(h2 + q22)
-      // N-1: worst case over single removals.
-      let worstH2 = h2
-      let worstV2 = q22
-      let worstP2 = h2 + q22
-      let lost = false
-      for (let j = 0; j < nv; j++) {
-        const s = gs[j]
-        if (cnt[s] === 1) continue // position block unchanged
-        if (nv - 1 < 3 + k) {
-          lost = true
-          break
-        }
-        const w = gw[j]
-        const alpha = (w * dw[s]) / (dw[s] - w)
-        const v0 = ge[j] - cx[s]
-        const v1 = gn[j] - cy[s]
-        const v2 = gu[j] - cz[s]
-        const t0 = q00 * v0 + q01 * v1 + q02 * v2
-        const t1 = q01 * v0 + q11 * v1 + q12 * v2
-        const t2 = q02 * v0 + q12 * v1 + q22 * v2
-        const den = 1 - alpha * (v0 * t0 + v1 * t1 + v2 * t2)
-        if (!(den > 1e-9)) {
-          lost = true
-          break
-        }
-        const f = alpha / den
-        const hh = h2 + f * (t0 * t0 + t1 * t1)
-        const vv = q22 + f * t2 * t2
-        if (hh > worstH2) worstH2 = hh
-        if (vv > worstV2) worstV2 = vv
-        if (hh + vv > worstP2) worstP2 = hh + vv
-      }
-      if (lost) {
-        out.n1h[idx] = out.n1v[idx] = out.n1p[idx] = Infinity
-      } else {
-        out.n1h[idx] = Math.sqrt(worstH2)
-        out.n1v[idx] = Math.sqrt(worstV2)
-        out.n1p[idx] = Math.sqrt(worstP2)
-      }
+      const f = alpha / den
+      const hh = h2 + f * (t0 * t0 + t1 * t1)
+      const vv = q22 + f * t2 * t2
+      if (hh > worstH2) worstH2 = hh
+      if (vv > worstV2) worstV2 = vv
+      if (hh + vv > worstP2) worstP2 = hh + vv
+    }
+    if (lost) {
+      oN1h[idx] = oN1v[idx] = oN1p[idx] = Infinity
+    } else {
+      oN1h[idx] = Math.sqrt(worstH2)
+      oN1v[idx] = Math.sqrt(worstV2)
+      oN1p[idx] = Math.sqrt(worstP2)
     }
   }
 }
 
-/** Weighted median of values[i] (weights[i]); NaN values count as +Infinity. */
-function weightedMedian(values: Float64Array, weights: Float64Array, n: number, order: Uint32Array): number {
-  for (let i = 0; i < n; i++) order[i] = i
-  const sub = order.subarray(0, n)
-  sub.sort((a, b) => {
-    const va = Number.isNaN(values[a]) ? Infinity : values[a]
-    const vb = Number.isNaN(values[b]) ? Infinity : values[b]
-    return va - vb || a - b
-  })
+/**
+ * Weighted median: the smallest value whose cumulative weight reaches half the total.
+ * NaN values count as +Infinity. Quickselect with a three-way partition on the first n
+ * entries of `values` / `weights` (both reordered in place): O(n), no allocation.
+ */
+function weightedMedian(values: Float64Array, weights: Float64Array, n: number): number {
   let total = 0
-  for (let i = 0; i < n; i++) total += weights[i]
-  let acc = 0
   for (let i = 0; i < n; i++) {
-    acc += weights[sub[i]]
-    if (acc >= total / 2) {
-      const v = values[sub[i]]
-      return Number.isNaN(v) ? Infinity : v
+    if (Number.isNaN(values[i])) values[i] = Infinity
+    total += weights[i]
+  }
+  let target = total / 2
+  let lo = 0
+  let hi = n - 1
+  while (lo <= hi) {
+    const pivot = values[(lo + hi) >> 1]
+    // Dutch-flag partition: [lo, lt) < pivot, [lt, i) == pivot, (gt, hi] > pivot.
+    let lt = lo
+    let i = lo
+    let gt = hi
+    let wLess = 0
+    let wEq = 0
+    while (i <= gt) {
+      const v = values[i]
+      if (v < pivot) {
+        wLess += weights[i]
+        swap(values, weights, lt++, i++)
+      } else if (v > pivot) {
+        swap(values, weights, i, gt--)
+      } else {
+        wEq += weights[i]
+        i++
+      }
+    }
+    if (wLess >= target && lt > lo) {
+      hi = lt - 1
+    } else if (wLess + wEq >= target) {
+      return pivot
+    } else {
+      target -= wLess + wEq
+      lo = gt + 1
     }
   }
   return Infinity
+}
+
+function swap(v: Float64Array, w: Float64Array, a: number, b: number): void {
+  const tv = v[a]
+  v[a] = v[b]
+  v[b] = tv
+  const tw = w[a]
+  w[a] = w[b]
+  w[b] = tw
 }
 
 function finiteOrNull(v: number): number | null {
@@ -689,11 +781,22 @@ export function forecastField(input: FieldForecastInput, now?: () => number): Fi
   const maxPerHour = Math.ceil(60 / stepMin + 1) * nPts
   const vals = new Float64Array(maxPerHour)
   const wts = new Float64Array(maxPerHour)
-  const order = new Uint32Array(maxPerHour)
   const satHist = new Float64Array(nSat + 2)
   const met = new Float64Array(tests.length)
   const metN1 = new Float64Array(tests.length)
   let detail: FieldForecast['detail']
+  const rSats = r.nSats
+  const rH = r.hdop
+  const rV = r.vdop
+  const rP = r.pdop
+  const rN1h = r.n1h
+  const rN1v = r.n1v
+  const rN1p = r.n1p
+  const nTests = tests.length
+  const tMaxH = Float64Array.from(tests, (t) => t.maxH)
+  const tMaxV = Float64Array.from(tests, (t) => t.maxV)
+  const tMaxP = Float64Array.from(tests, (t) => t.maxPdop)
+  const tMinSats = Float64Array.from(tests, (t) => t.minSats)
   let e0 = 0
   while (e0 < nEp) {
     const hourStart = Math.floor(epochs[e0] / HOUR_MS) * HOUR_MS
@@ -715,22 +818,28 @@ export function forecastField(input: FieldForecastInput, now?: () => number): Fi
         const i = e * nPts + p
         const w = areaW[p]
         totalW += w
-        const ns = r.nSats[i]
+        const ns = rSats[i]
         if (ns < minSats) minSats = ns
         satHist[ns] += w
-        const h = r.hdop[i]
-        if (Number.isNaN(h)) {
-          noFixW += w
-        } else {
-          if (h > hMax) hMax = h
-          if (r.vdop[i] > vMax) vMax = r.vdop[i]
-          if (r.pdop[i] > pMax) pMax = r.pdop[i]
-          if (r.n1h[i] > n1Max) n1Max = r.n1h[i]
+        const h = rH[i]
+        if (h !== h) {
+          noFixW += w // no fix: meets no work type
+          continue
         }
-        for (let t = 0; t < tests.length; t++) {
-          const res = testSample(tests[t], r, i)
-          if (res >= 1) met[t] += w
-          if (res === 2) metN1[t] += w
+        const v = rV[i]
+        const pd = rP[i]
+        const nh = rN1h[i]
+        const nvv = rN1v[i]
+        const np = rN1p[i]
+        if (h > hMax) hMax = h
+        if (v > vMax) vMax = v
+        if (pd > pMax) pMax = pd
+        if (nh > n1Max) n1Max = nh
+        for (let t = 0; t < nTests; t++) {
+          // Same rule as testSample(), inlined for the hot loop.
+          if (h > tMaxH[t] || ns < tMinSats[t] || pd > tMaxP[t] || v > tMaxV[t]) continue
+          met[t] += w
+          if (ns - 1 >= tMinSats[t] && nh <= tMaxH[t] && np <= tMaxP[t] && nvv <= tMaxV[t]) metN1[t] += w
         }
       }
     }
@@ -748,9 +857,12 @@ export function forecastField(input: FieldForecastInput, now?: () => number): Fi
       vals[k] = r.hdop[e0 * nPts + k]
       wts[k] = areaW[k % nPts]
     }
-    const hMed = weightedMedian(vals, wts, n, order)
-    for (let k = 0; k < n; k++) vals[k] = r.vdop[e0 * nPts + k]
-    const vMed = weightedMedian(vals, wts, n, order)
+    const hMed = weightedMedian(vals, wts, n)
+    for (let k = 0; k < n; k++) {
+      vals[k] = r.vdop[e0 * nPts + k]
+      wts[k] = areaW[k % nPts]
+    }
+    const vMed = weightedMedian(vals, wts, n)
     const anyFix = hMax > -Infinity
     const hMedN = finiteOrNull(hMed)
     const vMedN = finiteOrNull(vMed)

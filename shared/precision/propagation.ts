@@ -12,7 +12,7 @@
  * A satellite SGP4 cannot place at an epoch gets NaN.
  */
 import { BulkPropagator, EcfPositionCalculator, EciBaseCalculator, GmstCalculator, json2satrec, sgp4, twoline2satrec, type SatRec, type createSingleThreadRuntime } from 'satellite.js'
-import { keplerPositionInto, resolveKeplerOrbit } from './orbits/kepler'
+import { keplerCircularSeriesInto, keplerPositionInto, resolveKeplerOrbit } from './orbits/kepler'
 import type { KeplerOrbit, Satellite, Sgp4Orbit } from './orbits/types'
 import { gmstRad } from './time'
 
@@ -77,10 +77,17 @@ export function satellitePositions(
       satrecs.push(satrecOf(s.orbit))
     }
   })
-  for (let e = 0; e < nEp; e++) {
-    const t = epochsMs[e]
-    const base = e * nSat * 3
-    for (let k = 0; k < keplerIdx.length; k++) keplerPositionInto(keplerOrbits[k], t, out, base + keplerIdx[k] * 3)
+  // Evenly spaced epochs let circular orbits use angle-addition steps (no sin/cos per epoch).
+  const step = nEp > 1 ? epochsMs[1] - epochsMs[0] : 0
+  let even = nEp > 2
+  for (let e = 2; e < nEp && even; e++) even = epochsMs[e] - epochsMs[e - 1] === step
+  for (let k = 0; k < keplerIdx.length; k++) {
+    const o = keplerOrbits[k]
+    if (even && o.e === 0) {
+      keplerCircularSeriesInto(o, epochsMs[0], step, nEp, out, keplerIdx[k] * 3, nSat * 3)
+    } else {
+      for (let e = 0; e < nEp; e++) keplerPositionInto(o, epochsMs[e], out, (e * nSat + keplerIdx[k]) * 3)
+    }
   }
   if (satrecs.length > 0) {
     if (options.bulkRuntime) sgp4Bulk(satrecs, sgpIdx, epochsMs, nSat, out, options.bulkRuntime)

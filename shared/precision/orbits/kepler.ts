@@ -73,3 +73,53 @@ export function keplerPositionInto(o: KeplerOrbit, utcMs: number, out: Float64Ar
   out[offset + 1] = xp * sL + yp * ci * cL
   out[offset + 2] = yp * si
 }
+
+/**
+ * Positions of a circular Keplerian orbit (e = 0) at `count` evenly spaced instants,
+ * by rotating the (cos, sin) pairs of the argument of latitude and of the node
+ * longitude by their fixed step (angle addition) instead of calling sin/cos at every
+ * epoch; re-anchored with direct sin/cos every 64 steps so rounding stays below 1e-13
+ * rad. Writes x, y, z of epoch k to out[offset + k * stride + 0..2].
+ */
+export function keplerCircularSeriesInto(
+  o: KeplerOrbit,
+  startMs: number,
+  stepMs: number,
+  count: number,
+  out: Float64Array,
+  offset: number,
+  stride: number,
+): void {
+  const r = o.aM
+  const ci = Math.cos(o.iRad)
+  const si = Math.sin(o.iRad)
+  const stepS = stepMs / 1000
+  const cdu = Math.cos(o.nRadS * stepS)
+  const sdu = Math.sin(o.nRadS * stepS)
+  const cdl = Math.cos(o.lonRateRadS * stepS)
+  const sdl = Math.sin(o.lonRateRadS * stepS)
+  for (let k0 = 0; k0 < count; k0 += 64) {
+    const tk = (startMs + k0 * stepMs - o.tRefMs) / 1000
+    const u = o.m0Rad + o.nRadS * tk + o.omegaRad
+    const L = o.lon0Rad + o.lonRateRadS * tk
+    let cu = Math.cos(u)
+    let su = Math.sin(u)
+    let cL = Math.cos(L)
+    let sL = Math.sin(L)
+    const kEnd = Math.min(count, k0 + 64)
+    for (let k = k0; k < kEnd; k++) {
+      const xp = r * cu
+      const yp = r * su
+      const j = offset + k * stride
+      out[j] = xp * cL - yp * ci * sL
+      out[j + 1] = xp * sL + yp * ci * cL
+      out[j + 2] = yp * si
+      const cu2 = cu * cdu - su * sdu
+      su = su * cdu + cu * sdu
+      cu = cu2
+      const cL2 = cL * cdl - sL * sdl
+      sL = sL * cdl + cL * sdl
+      cL = cL2
+    }
+  }
+}
