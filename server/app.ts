@@ -17,9 +17,12 @@ import { createLogger, type Logger } from './logger.ts'
 import type { Mailer } from './mail/transport.ts'
 import { authRoutes, defaultAuthRateLimits, type AuthRateLimits } from './routes/auth.ts'
 import { farmRoutes } from './routes/farms.ts'
+import { machineRoutes } from './routes/machines.ts'
 import { mailboxRoutes } from './routes/mailbox.ts'
+import { serviceLevelRoutes } from './routes/serviceLevels.ts'
 import { systemRoutes } from './routes/system.ts'
 import { userRoutes } from './routes/users.ts'
+import { workTypeRoutes } from './routes/workTypes.ts'
 import { createServices, type Services } from './services/index.ts'
 
 export const defaultDistDir = fileURLToPath(new URL('../dist', import.meta.url))
@@ -105,6 +108,9 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
   api.use('/farms', farmRoutes(services))
   api.use('/users', userRoutes(services))
   api.use('/mailbox', mailboxRoutes(services))
+  api.use('/service-levels', serviceLevelRoutes(services))
+  api.use('/work-types', workTypeRoutes(services))
+  api.use('/machines', machineRoutes(services))
   api.use(apiNotFound)
   app.use('/api', api)
 

@@ -2,6 +2,11 @@ import { createAuthService } from './auth.ts'
 import type { ServiceContext } from './context.ts'
 import { createFarmsService } from './farms.ts'
 import { createMailboxService } from './mailbox.ts'
+import { createForecastsService } from './forecasts.ts'
+import { createJobsService } from './jobs.ts'
+import { createMachinesService } from './machines.ts'
+import { createServiceLevelsService } from './serviceLevels.ts'
+import { createWorkTypesService } from './workTypes.ts'
 import { createMetaService } from './meta.ts'
 import { createUsersService } from './users.ts'
 
@@ -12,6 +17,11 @@ export function createServices(ctx: ServiceContext) {
     users: createUsersService(ctx),
     mailbox: createMailboxService(ctx),
     meta: createMetaService(ctx),
+    serviceLevels: createServiceLevelsService(ctx),
+    workTypes: createWorkTypesService(ctx),
+    machines: createMachinesService(ctx),
+    jobs: createJobsService(ctx),
+    forecasts: createForecastsService(ctx),
   }
 }
 export type Services = ReturnType<typeof createServices>

@@ -4,6 +4,11 @@ import type { Database, DbOrTx } from '../index.ts'
 import { businessRepository } from './business.ts'
 import { farmsRepository } from './farms.ts'
 import { mailboxRepository } from './mailbox.ts'
+import { forecastsRepository } from './forecasts.ts'
+import { jobsRepository } from './jobs.ts'
+import { machinesRepository } from './machines.ts'
+import { serviceLevelsRepository } from './serviceLevels.ts'
+import { workTypesRepository } from './workTypes.ts'
 import { sessionsRepository } from './sessions.ts'
 import { tokensRepository } from './tokens.ts'
 import { usersRepository } from './users.ts'
@@ -16,6 +21,11 @@ export function createRepositories(db: DbOrTx) {
     tokens: tokensRepository(db),
     mailbox: mailboxRepository(db),
     business: businessRepository(db),
+    serviceLevels: serviceLevelsRepository(db),
+    workTypes: workTypesRepository(db),
+    machines: machinesRepository(db),
+    jobs: jobsRepository(db),
+    forecasts: forecastsRepository(db),
   }
 }
 export type Repositories = ReturnType<typeof createRepositories>
