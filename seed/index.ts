@@ -6,6 +6,7 @@ import { hashPassword } from '../server/auth/password.ts'
 import { loadConfig } from '../server/config.ts'
 import { openDatabase, type Database } from '../server/db/index.ts'
 import { createStore } from '../server/db/repositories/index.ts'
+import { seedPlanning } from './planning.ts'
 import { DEMO_PASSWORD, demoBusinessName, demoFarms, demoUsers } from './scenario.ts'
 
 export interface SeedResult {
@@ -15,6 +16,8 @@ export interface SeedResult {
 }
 
 export async function seedDemo(db: Database): Promise<SeedResult> {
+  // Service levels, work types and machines first: fields and passes refer to them.
+  await seedPlanning(db)
   const store = createStore(db)
   if ((await store.repos.users.count()) > 0) return { seeded: false, users: 0, farms: 0 }
   const passwordHash = await hashPassword(DEMO_PASSWORD)

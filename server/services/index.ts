@@ -2,8 +2,6 @@ import { createAuthService } from './auth.ts'
 import type { ServiceContext } from './context.ts'
 import { createFarmsService } from './farms.ts'
 import { createMailboxService } from './mailbox.ts'
-import { createForecastsService } from './forecasts.ts'
-import { createJobsService } from './jobs.ts'
 import { createMachinesService } from './machines.ts'
 import { createServiceLevelsService } from './serviceLevels.ts'
 import { createWorkTypesService } from './workTypes.ts'
@@ -20,8 +18,6 @@ export function createServices(ctx: ServiceContext) {
     serviceLevels: createServiceLevelsService(ctx),
     workTypes: createWorkTypesService(ctx),
     machines: createMachinesService(ctx),
-    jobs: createJobsService(ctx),
-    forecasts: createForecastsService(ctx),
   }
 }
 export type Services = ReturnType<typeof createServices>

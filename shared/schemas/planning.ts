@@ -1,42 +1,95 @@
 import { z } from 'zod'
 
-export const serviceLevelInputSchema = z.object({
-  name: z.string().trim().min(1, 'Enter a name').max(80),
-  sigmaUereM: z.number().positive('sigma must be above 0 m').max(100, 'sigma must be at most 100 m'),
-  note: z.string().trim().max(500).default(''),
-})
+// Correction service levels, work types and machines (admin reference data).
+// GET for every signed-in role; POST/PATCH/DELETE for admins. PATCH bodies carry only
+// the fields that change (no defaults). DELETE of something still in use answers 409
+// naming what uses it.
+
+const serviceLevelFields = {
+  name: z.string().trim().min(1, 'Enter a name').max(80, 'Use at most 80 characters'),
+  sigmaUereM: z
+    .number({ error: 'Enter sigma in metres' })
+    .positive('sigma must be above 0 m')
+    .max(100, 'sigma must be at most 100 m'),
+  note: z.string().trim().max(500, 'Use at most 500 characters'),
+}
+
+export const serviceLevelInputSchema = z.object({ ...serviceLevelFields, note: serviceLevelFields.note.default('') })
 export type ServiceLevelInput = z.infer<typeof serviceLevelInputSchema>
+export const serviceLevelPatchSchema = z.object(serviceLevelFields).partial()
+export type ServiceLevelPatch = z.infer<typeof serviceLevelPatchSchema>
 export interface ServiceLevel extends ServiceLevelInput {
   id: number
 }
 
-export const workTypeInputSchema = z.object({
-  name: z.string().trim().min(1, 'Enter a name').max(80),
-  serviceLevelId: z.number().int().positive(),
-  maxH95M: z.number().positive().max(100),
-  maxV95M: z.number().positive().max(100).nullable(),
-  minSats: z.number().int().min(4).max(60),
-  maxPdop: z.number().positive().max(50),
-  requiredShare: z.number().gt(0).lte(1),
+const workTypeFields = {
+  name: z.string().trim().min(1, 'Enter a name').max(80, 'Use at most 80 characters'),
+  serviceLevelId: z.number({ error: 'Choose a service level' }).int().positive('Choose a service level'),
+  maxH95M: z
+    .number({ error: 'Enter the largest horizontal error' })
+    .positive('The horizontal limit must be above 0')
+    .max(100, 'The horizontal limit must be at most 100 m'),
+  /** null: the work has no vertical need. */
+  maxV95M: z
+    .number({ error: 'Enter the largest vertical error, or leave it empty' })
+    .positive('The vertical limit must be above 0')
+    .max(100, 'The vertical limit must be at most 100 m')
+    .nullable(),
+  minSats: z
+    .number({ error: 'Enter the fewest satellites' })
+    .int('Use a whole number of satellites')
+    .min(4, 'A fix needs at least 4 satellites')
+    .max(60, 'At most 60 satellites'),
+  maxPdop: z.number({ error: 'Enter the highest PDOP' }).positive('PDOP must be above 0').max(50, 'PDOP must be at most 50'),
+  requiredShare: z
+    .number({ error: 'Enter the share of the field' })
+    .gt(0, 'The share must be above 0 %')
+    .lte(1, 'The share must be at most 100 %'),
   requireN1: z.boolean(),
-  rateHaPerH: z.number().positive().max(1000),
-  sortOrder: z.number().int().min(0).max(1000).default(0),
-  active: z.boolean().default(true),
+  rateHaPerH: z
+    .number({ error: 'Enter the work rate' })
+    .positive('The work rate must be above 0')
+    .max(1000, 'The work rate must be at most 1000 ha/h'),
+  sortOrder: z.number().int().min(0).max(1000),
+  active: z.boolean(),
+}
+
+export const workTypeInputSchema = z.object({
+  ...workTypeFields,
+  maxV95M: workTypeFields.maxV95M.default(null),
+  sortOrder: workTypeFields.sortOrder.default(0),
+  active: workTypeFields.active.default(true),
 })
 export type WorkTypeInput = z.infer<typeof workTypeInputSchema>
+export const workTypePatchSchema = z.object(workTypeFields).partial()
+export type WorkTypePatch = z.infer<typeof workTypePatchSchema>
 export interface WorkType extends WorkTypeInput {
   id: number
 }
 
+const machineFields = {
+  name: z.string().trim().min(1, 'Enter a name').max(120, 'Use at most 120 characters'),
+  crew: z.string().trim().max(120, 'Use at most 120 characters'),
+  antennaHeightM: z
+    .number({ error: 'Enter the antenna height' })
+    .min(0.5, 'Antenna height is at least 0.5 m')
+    .max(10, 'Antenna height is at most 10 m'),
+  /** Overrides the work type's rate when set. */
+  rateHaPerH: z.number().positive('The work rate must be above 0').max(1000, 'The work rate must be at most 1000 ha/h').nullable(),
+  active: z.boolean(),
+  notes: z.string().trim().max(1000, 'Use at most 1000 characters'),
+}
+
 export const machineInputSchema = z.object({
-  name: z.string().trim().min(1, 'Enter a name').max(120),
-  crew: z.string().trim().max(120).default(''),
-  antennaHeightM: z.number().min(0.5).max(10),
-  rateHaPerH: z.number().positive().max(1000).nullable().default(null),
-  active: z.boolean().default(true),
-  notes: z.string().trim().max(1000).default(''),
+  ...machineFields,
+  crew: machineFields.crew.default(''),
+  rateHaPerH: machineFields.rateHaPerH.default(null),
+  active: machineFields.active.default(true),
+  notes: machineFields.notes.default(''),
 })
 export type MachineInput = z.infer<typeof machineInputSchema>
+export const machinePatchSchema = z.object(machineFields).partial()
+export type MachinePatch = z.infer<typeof machinePatchSchema>
 export interface Machine extends MachineInput {
   id: number
 }

@@ -4,8 +4,6 @@ import type { Database, DbOrTx } from '../index.ts'
 import { businessRepository } from './business.ts'
 import { farmsRepository } from './farms.ts'
 import { mailboxRepository } from './mailbox.ts'
-import { forecastsRepository } from './forecasts.ts'
-import { jobsRepository } from './jobs.ts'
 import { machinesRepository } from './machines.ts'
 import { serviceLevelsRepository } from './serviceLevels.ts'
 import { workTypesRepository } from './workTypes.ts'
@@ -24,8 +22,6 @@ export function createRepositories(db: DbOrTx) {
     serviceLevels: serviceLevelsRepository(db),
     workTypes: workTypesRepository(db),
     machines: machinesRepository(db),
-    jobs: jobsRepository(db),
-    forecasts: forecastsRepository(db),
   }
 }
 export type Repositories = ReturnType<typeof createRepositories>

@@ -1,0 +1,114 @@
+// Work types: everyone signed in reads them; admins create, change, delete. Every change
+// of thresholds re-forecasts all fields (each stored hour carries a state per work type).
+import type { WorkType, WorkTypeInput, WorkTypePatch } from '../../shared/schemas/planning.ts'
+import type { Repositories } from '../db/repositories/index.ts'
+import { isDuplicateKey } from '../db/repositories/util.ts'
+import type { WorkTypeRow } from '../db/schema-planning.ts'
+import { emit } from '../events.ts'
+import { badRequest, conflict, notFound } from '../http/errors.ts'
+import type { ServiceContext } from './context.ts'
+
+const NAME_TAKEN = 'A work type with this name already exists.'
+
+export function toWorkType(row: WorkTypeRow): WorkType {
+  return {
+    id: row.id,
+    name: row.name,
+    serviceLevelId: row.serviceLevelId,
+    maxH95M: row.maxH95M,
+    maxV95M: row.maxV95M,
+    minSats: row.minSats,
+    maxPdop: row.maxPdop,
+    requiredShare: row.requiredShare,
+    requireN1: row.requireN1,
+    rateHaPerH: row.rateHaPerH,
+    sortOrder: row.sortOrder,
+    active: row.active,
+  }
+}
+
+function rethrowDuplicate(error: unknown): never {
+  if (isDuplicateKey(error)) throw conflict(NAME_TAKEN, { name: NAME_TAKEN })
+  throw error
+}
+
+async function checkServiceLevel(repos: Repositories, id: number): Promise<void> {
+  if (!(await repos.serviceLevels.findById(id))) {
+    throw badRequest('The service level does not exist.', { serviceLevelId: `No service level with id ${id}.` })
+  }
+}
+
+/** Fields of a work type that change stored forecasts (the name and sort order do not). */
+const forecastKeys = ['serviceLevelId', 'maxH95M', 'maxV95M', 'minSats', 'maxPdop', 'requiredShare', 'requireN1', 'active'] as const
+
+export function createWorkTypesService(ctx: ServiceContext) {
+  const { store } = ctx
+
+  return {
+    async list(): Promise<WorkType[]> {
+      return (await store.repos.workTypes.list()).map(toWorkType)
+    },
+
+    async get(id: number): Promise<WorkType> {
+      const row = await store.repos.workTypes.findById(id)
+      if (!row) throw notFound('The work type')
+      return toWorkType(row)
+    },
+
+    async create(input: WorkTypeInput): Promise<WorkType> {
+      let result: WorkType
+      try {
+        result = await store.transaction(async (repos) => {
+          if (await repos.workTypes.nameTaken(input.name)) throw conflict(NAME_TAKEN, { name: NAME_TAKEN })
+          await checkServiceLevel(repos, input.serviceLevelId)
+          const id = await repos.workTypes.insert(input)
+          return toWorkType((await repos.workTypes.findById(id))!)
+        })
+      } catch (error) {
+        rethrowDuplicate(error)
+      }
+      if (result.active) void emit('planning.changed', { serviceLevelIds: 'all' })
+      return result
+    },
+
+    async update(id: number, patch: WorkTypePatch): Promise<WorkType> {
+      let affectsForecasts = false
+      let result: WorkType
+      try {
+        result = await store.transaction(async (repos) => {
+          const before = await repos.workTypes.findById(id)
+          if (!before) throw notFound('The work type')
+          if (patch.name !== undefined && (await repos.workTypes.nameTaken(patch.name, id))) {
+            throw conflict(NAME_TAKEN, { name: NAME_TAKEN })
+          }
+          if (patch.serviceLevelId !== undefined) await checkServiceLevel(repos, patch.serviceLevelId)
+          const changes = Object.fromEntries(Object.entries(patch).filter(([, v]) => v !== undefined))
+          if (Object.keys(changes).length) await repos.workTypes.update(id, changes)
+          affectsForecasts = forecastKeys.some((k) => patch[k] !== undefined && patch[k] !== before[k])
+          return toWorkType((await repos.workTypes.findById(id))!)
+        })
+      } catch (error) {
+        rethrowDuplicate(error)
+      }
+      if (affectsForecasts) void emit('planning.changed', { serviceLevelIds: 'all' })
+      return result
+    },
+
+    /** 409 while passes are booked for it (deactivate it instead). */
+    async remove(id: number): Promise<void> {
+      await store.transaction(async (repos) => {
+        const row = await repos.workTypes.findById(id)
+        if (!row) throw notFound('The work type')
+        const passes = await repos.workTypes.passCount(id)
+        if (passes > 0) {
+          throw conflict(
+            `${row.name} is used by ${passes} pass${passes > 1 ? 'es' : ''}. Mark it inactive instead, or move those passes to another work type first.`,
+          )
+        }
+        await repos.workTypes.delete(id)
+      })
+      void emit('planning.changed', { serviceLevelIds: 'all' })
+    },
+  }
+}
+export type WorkTypesService = ReturnType<typeof createWorkTypesService>
