@@ -1,0 +1,239 @@
+// The authorization matrix: every API route registered on the app is called as anonymous,
+// as each role, and as a client of another farm, and the status must match the table below.
+// A route without a row fails the test, and so does a row without a route.
+//
+// Adding a route: add one row keyed 'METHOD /api/path/:param'. `call` fills the path
+// parameters and the body (and may create throwaway data, e.g. something to delete);
+// `expect` gives the status for each caller. Mutating calls by allowed callers should
+// really succeed (2xx) where that is cheap, so the row proves more than "not 403".
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import {
+  Client,
+  demo,
+  signIn,
+  startTestServer,
+  unique,
+  waitForMail,
+  type TestServer,
+} from '../support/server.ts'
+import { listRoutes } from '../support/routes.ts'
+
+const callers = ['anonymous', 'admin', 'office', 'contractor', 'client', 'otherClient'] as const
+type Caller = (typeof callers)[number]
+type SignedInCaller = Exclude<Caller, 'anonymous'>
+type Expected = Record<Caller, number>
+
+/** The callers' accounts: `client` is linked to `fixtures.farmId`; `otherClient` is not. */
+const accounts: Record<SignedInCaller, string> = {
+  admin: demo.admin,
+  office: demo.office,
+  contractor: demo.contractor,
+  client: demo.clientNorth,
+  otherClient: demo.clientSouth,
+}
+
+interface Fixtures {
+  server: TestServer
+  /** A farm of the `client` caller (not of `otherClient`). */
+  farmId: number
+  /** The `client` caller's user id. */
+  clientUserId: number
+  /** A mailbox message with one attachment. */
+  mailId: number
+  /** The id of the first item an admin sees at `listPath` (a list or a Page). */
+  firstId(listPath: string): Promise<number>
+}
+
+interface Call {
+  params?: Record<string, string | number>
+  body?: unknown
+}
+
+interface Row {
+  call?: (f: Fixtures, caller: Caller) => Call | Promise<Call>
+  /** The call ends the caller's session (sign-out): sign in again afterwards. */
+  endsSession?: boolean
+  expect: Expected
+}
+
+// ---- expectation shorthands ---------------------------------------------------------
+const everyone = (status: number): Expected =>
+  Object.fromEntries(callers.map((c) => [c, status])) as Expected
+/** 401 for anonymous, `status` for every signed-in caller. */
+const signedIn = (status: number): Expected => ({ ...everyone(status), anonymous: 401 })
+/** 401 for anonymous, `status` for the given roles, 403 for the rest. */
+const only = (allowed: SignedInCaller[], status: number): Expected =>
+  Object.fromEntries(
+    callers.map((c) => [c, c === 'anonymous' ? 401 : allowed.includes(c) ? status : 403]),
+  ) as Expected
+const admins = (status: number) => only(['admin'], status)
+
+// ---- throwaway data -----------------------------------------------------------------
+async function throwawayFarm(f: Fixtures): Promise<number> {
+  return f.server.repos.farms.insert({ name: unique('Matrix farm '), timeZone: 'UTC', address: '', notes: '' })
+}
+async function invitedUser(f: Fixtures): Promise<number> {
+  return f.server.repos.users.insert({ email: `${unique('matrix')}@example.test`, name: 'Matrix Invitee', role: 'office' })
+}
+
+/**
+ * The five rows of a reference list that every signed-in role reads and admins manage.
+ * Changes are checked without side effects: an empty POST is refused as invalid (400),
+ * an empty PATCH changes nothing (200), a DELETE of an id that does not exist is 404.
+ */
+function adminManaged(base: string): Record<string, Row> {
+  const first = (f: Fixtures) => f.firstId(base)
+  return {
+    [`GET ${base}`]: { expect: signedIn(200) },
+    [`GET ${base}/:id`]: { call: async (f) => ({ params: { id: await first(f) } }), expect: signedIn(200) },
+    [`POST ${base}`]: { call: () => ({ body: {} }), expect: admins(400) },
+    [`PATCH ${base}/:id`]: { call: async (f) => ({ params: { id: await first(f) }, body: {} }), expect: admins(200) },
+    [`DELETE ${base}/:id`]: { call: () => ({ params: { id: 999_999 } }), expect: admins(404) },
+  }
+}
+
+// ---- the table ----------------------------------------------------------------------
+const matrix: Record<string, Row> = {
+  'GET /api/health': { expect: everyone(200) },
+  'GET /api/meta': { expect: everyone(200) },
+
+  'POST /api/auth/sign-in': {
+    call: () => ({ body: { email: 'matrix-nobody@example.test', password: 'not-a-real-password' } }),
+    expect: everyone(401),
+  },
+  'POST /api/auth/sign-out': { endsSession: true, expect: signedIn(204) },
+  'POST /api/auth/sign-out-everywhere': { endsSession: true, expect: signedIn(204) },
+  'GET /api/auth/me': { expect: signedIn(200) },
+  'PATCH /api/auth/me': { call: () => ({ body: {} }), expect: signedIn(200) },
+  'POST /api/auth/change-password': {
+    call: () => ({ body: { currentPassword: 'not-the-password', newPassword: 'never-set-password' } }),
+    expect: signedIn(400),
+  },
+  'POST /api/auth/request-reset': {
+    call: () => ({ body: { email: 'matrix-nobody@example.test' } }),
+    expect: everyone(202),
+  },
+  'POST /api/auth/reset': {
+    call: () => ({ body: { token: 'x'.repeat(43), password: 'never-set-password' } }),
+    expect: everyone(400),
+  },
+
+  'GET /api/farms': { expect: signedIn(200) },
+  'GET /api/farms/:id': {
+    call: (f) => ({ params: { id: f.farmId } }),
+    expect: { ...signedIn(200), otherClient: 404 },
+  },
+  'POST /api/farms': {
+    call: () => ({ body: { name: unique('Matrix farm '), timeZone: 'America/Chicago' } }),
+    expect: admins(201),
+  },
+  'PATCH /api/farms/:id': { call: (f) => ({ params: { id: f.farmId }, body: {} }), expect: admins(200) },
+  'DELETE /api/farms/:id': { call: async (f) => ({ params: { id: await throwawayFarm(f) } }), expect: admins(204) },
+
+  'GET /api/users': { expect: admins(200) },
+  'GET /api/users/:id': { call: (f) => ({ params: { id: f.clientUserId } }), expect: admins(200) },
+  'POST /api/users': {
+    call: () => ({ body: { email: `${unique('matrix')}@example.test`, name: 'Matrix Invitee', role: 'contractor' } }),
+    expect: admins(201),
+  },
+  'PATCH /api/users/:id': { call: (f) => ({ params: { id: f.clientUserId }, body: {} }), expect: admins(200) },
+  'POST /api/users/:id/resend-invite': {
+    call: async (f) => ({ params: { id: await invitedUser(f) } }),
+    expect: admins(204),
+  },
+
+  'GET /api/mailbox': { expect: only(['admin', 'office'], 200) },
+  'GET /api/mailbox/:id': { call: (f) => ({ params: { id: f.mailId } }), expect: only(['admin', 'office'], 200) },
+  'GET /api/mailbox/:id/attachments/:index': {
+    call: (f) => ({ params: { id: f.mailId, index: 0 } }),
+    expect: only(['admin', 'office'], 200),
+  },
+
+  ...adminManaged('/api/service-levels'),
+  ...adminManaged('/api/work-types'),
+  ...adminManaged('/api/machines'),
+}
+
+// ---- running it ---------------------------------------------------------------------
+let fixtures: Fixtures
+const sessions = new Map<SignedInCaller, Client>()
+
+async function clientFor(caller: Caller): Promise<Client> {
+  if (caller === 'anonymous') return new Client(fixtures.server.app)
+  let client = sessions.get(caller)
+  if (!client) {
+    client = await signIn(fixtures.server.app, accounts[caller])
+    sessions.set(caller, client)
+  }
+  return client
+}
+
+function fillPath(path: string, params: Record<string, string | number> = {}): string {
+  return path.replace(/:(\w+)/g, (_, name: string) => {
+    if (!(name in params)) throw new Error(`the matrix row for ${path} gives no value for :${name}`)
+    return encodeURIComponent(String(params[name]))
+  })
+}
+
+beforeAll(async () => {
+  const server = await startTestServer()
+  const north = await server.repos.users.findByEmail(demo.clientNorth)
+  const south = await server.repos.users.findByEmail(demo.clientSouth)
+  const northFarms = await server.repos.users.farmIdsOf(north!.id)
+  const southFarms = await server.repos.users.farmIdsOf(south!.id)
+  const farmId = northFarms.find((id) => !southFarms.includes(id))
+  if (!farmId) throw new Error('the demo scenario needs a farm of client.north that client.south does not share')
+  const to = `${unique('matrix-mail')}@example.test`
+  const since = new Date()
+  await server.mailer.send({
+    to,
+    subject: 'Matrix message',
+    text: 'For the authorization matrix.',
+    html: '<p>For the authorization matrix.</p>',
+    attachments: [{ filename: 'plan.ics', content: 'BEGIN:VCALENDAR\r\nEND:VCALENDAR\r\n', contentType: 'text/calendar' }],
+  })
+  const mail = await waitForMail(server.repos, to, since)
+  const firstIds = new Map<string, number>()
+  const firstId = async (listPath: string) => {
+    if (!firstIds.has(listPath)) {
+      const res = await (await clientFor('admin')).get(listPath)
+      const items = (Array.isArray(res.body) ? res.body : res.body?.items) as { id: number }[] | undefined
+      if (res.status !== 200 || !items?.length) throw new Error(`the matrix needs at least one item at ${listPath}`)
+      firstIds.set(listPath, items[0].id)
+    }
+    return firstIds.get(listPath)!
+  }
+  fixtures = { server, farmId, clientUserId: north!.id, mailId: mail.id, firstId }
+})
+
+afterAll(async () => {
+  await fixtures?.server.close()
+})
+
+describe('authorization matrix', () => {
+  it('has exactly one row for every registered API route', () => {
+    const registered = listRoutes(fixtures.server.app).filter((r) => r.split(' ')[1].startsWith('/api'))
+    expect(registered.length).toBeGreaterThan(0)
+    const missing = registered.filter((r) => !(r in matrix))
+    const stale = Object.keys(matrix).filter((r) => !registered.includes(r))
+    expect(missing.join('\n'), 'routes without a row in the authorization matrix').toBe('')
+    expect(stale.join('\n'), 'matrix rows for routes that do not exist').toBe('')
+  })
+
+  for (const [route, row] of Object.entries(matrix)) {
+    it(route, async () => {
+      const [method, path] = route.split(' ') as [string, string]
+      const actual = {} as Expected
+      const details: string[] = []
+      for (const caller of callers) {
+        const { params, body } = (await row.call?.(fixtures, caller)) ?? {}
+        const client = await clientFor(caller)
+        const res = await client.call(method.toLowerCase() as 'get', fillPath(path, params), body)
+        actual[caller] = res.status
+        if (res.status !== row.expect[caller]) details.push(`${caller}: ${res.status} ${JSON.stringify(res.body)}`)
+        if (row.endsSession && caller !== 'anonymous') sessions.delete(caller)
+      }
+      expect(actual, details.join('\n')).toEqual(row.expect)
+    })
+  }
+})
