@@ -17,6 +17,9 @@ import { createLogger, type Logger } from './logger.ts'
 import type { Mailer } from './mail/transport.ts'
 import { authRoutes, defaultAuthRateLimits, type AuthRateLimits } from './routes/auth.ts'
 import { farmRoutes } from './routes/farms.ts'
+import { fieldRoutes } from './routes/fields.ts'
+import { obstructionRoutes } from './routes/obstructions.ts'
+import { orbitRoutes } from './routes/orbits.ts'
 import { machineRoutes } from './routes/machines.ts'
 import { mailboxRoutes } from './routes/mailbox.ts'
 import { serviceLevelRoutes } from './routes/serviceLevels.ts'
@@ -108,6 +111,9 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
   api.use('/farms', farmRoutes(services))
   api.use('/users', userRoutes(services))
   api.use('/mailbox', mailboxRoutes(services))
+  api.use(fieldRoutes(services))
+  api.use(obstructionRoutes(services))
+  api.use(orbitRoutes(services))
   api.use('/service-levels', serviceLevelRoutes(services))
   api.use('/work-types', workTypeRoutes(services))
   api.use('/machines', machineRoutes(services))

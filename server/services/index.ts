@@ -1,6 +1,9 @@
 import { createAuthService } from './auth.ts'
 import type { ServiceContext } from './context.ts'
 import { createFarmsService } from './farms.ts'
+import { createFieldsService } from './fields.ts'
+import { createObstructionsService } from './obstructions.ts'
+import { createOrbitsService } from './orbits.ts'
 import { createMailboxService } from './mailbox.ts'
 import { createMachinesService } from './machines.ts'
 import { createServiceLevelsService } from './serviceLevels.ts'
@@ -15,6 +18,9 @@ export function createServices(ctx: ServiceContext) {
     users: createUsersService(ctx),
     mailbox: createMailboxService(ctx),
     meta: createMetaService(ctx),
+    fields: createFieldsService(ctx),
+    obstructions: createObstructionsService(ctx),
+    orbits: createOrbitsService(ctx),
     serviceLevels: createServiceLevelsService(ctx),
     workTypes: createWorkTypesService(ctx),
     machines: createMachinesService(ctx),

@@ -3,6 +3,10 @@ import { sql } from 'drizzle-orm'
 import type { Database, DbOrTx } from '../index.ts'
 import { businessRepository } from './business.ts'
 import { farmsRepository } from './farms.ts'
+import { fieldsRepository } from './fields.ts'
+import { obstructionsRepository } from './obstructions.ts'
+import { orbitsRepository } from './orbits.ts'
+import { outagesRepository } from './outages.ts'
 import { mailboxRepository } from './mailbox.ts'
 import { machinesRepository } from './machines.ts'
 import { serviceLevelsRepository } from './serviceLevels.ts'
@@ -22,6 +26,10 @@ export function createRepositories(db: DbOrTx) {
     serviceLevels: serviceLevelsRepository(db),
     workTypes: workTypesRepository(db),
     machines: machinesRepository(db),
+    fields: fieldsRepository(db),
+    obstructions: obstructionsRepository(db),
+    orbits: orbitsRepository(db),
+    outages: outagesRepository(db),
   }
 }
 export type Repositories = ReturnType<typeof createRepositories>
