@@ -318,9 +318,9 @@ function evaluateSamples(
   const centre = ecefToGeodetic([mx, my, mz])
   const cb = enuBasis(centre.latDeg, centre.lonDeg)
   const cux = cb[6], cuy = cb[7], cuz = cb[8]
-  // Satellites are at least ~1000 km away when above the horizon of any GNSS user; the
-  // bound is doubled and 1e-6 rad added for safety.
-  const slackRad = 2 * (spread / 6.3e6 + spread / 1.0e6) + 1e-6
+  // Any satellite above the horizon is more than 300 km away (even a low orbiter from
+  // an uploaded element set); the bound is doubled and 1e-6 rad added for safety.
+  const slackRad = 2 * (spread / 6.3e6 + spread / 3.0e5) + 1e-6
   const sinPre = Math.sin(Math.max(maskDeg * DEG - slackRad, -Math.PI / 2))
   const candidates = new Int32Array(nSat)
   const oSats = out.nSats
@@ -797,99 +797,13 @@ export function forecastField(input: FieldForecastInput, now?: () => number): Fi
   const tMaxV = Float64Array.from(tests, (t) => t.maxV)
   const tMaxP = Float64Array.from(tests, (t) => t.maxPdop)
   const tMinSats = Float64Array.from(tests, (t) => t.minSats)
+  const agg: Aggregation = { nPts, areaW, rSats, rH, rV, rP, rN1h, rN1v, rN1p, tests, nTests, tMaxH, tMaxV, tMaxP, tMinSats, vals, wts, satHist, met, metN1, sigma }
   let e0 = 0
   while (e0 < nEp) {
     const hourStart = Math.floor(epochs[e0] / HOUR_MS) * HOUR_MS
     let e1 = e0
     while (e1 < nEp && epochs[e1] < hourStart + HOUR_MS) e1++
-    const n = (e1 - e0) * nPts
-    let totalW = 0
-    let noFixW = 0
-    let minSats = Infinity
-    let hMax = -Infinity
-    let vMax = -Infinity
-    let pMax = -Infinity
-    let n1Max = -Infinity
-    satHist.fill(0)
-    met.fill(0)
-    metN1.fill(0)
-    for (let e = e0; e < e1; e++) {
-      for (let p = 0; p < nPts; p++) {
-        const i = e * nPts + p
-        const w = areaW[p]
-        totalW += w
-        const ns = rSats[i]
-        if (ns < minSats) minSats = ns
-        satHist[ns] += w
-        const h = rH[i]
-        if (h !== h) {
-          noFixW += w // no fix: meets no work type
-          continue
-        }
-        const v = rV[i]
-        const pd = rP[i]
-        const nh = rN1h[i]
-        const nvv = rN1v[i]
-        const np = rN1p[i]
-        if (h > hMax) hMax = h
-        if (v > vMax) vMax = v
-        if (pd > pMax) pMax = pd
-        if (nh > n1Max) n1Max = nh
-        for (let t = 0; t < nTests; t++) {
-          // Same rule as testSample(), inlined for the hot loop.
-          if (h > tMaxH[t] || ns < tMinSats[t] || pd > tMaxP[t] || v > tMaxV[t]) continue
-          met[t] += w
-          if (ns - 1 >= tMinSats[t] && nh <= tMaxH[t] && np <= tMaxP[t] && nvv <= tMaxV[t]) metN1[t] += w
-        }
-      }
-    }
-    // Weighted medians.
-    let half = 0
-    let satMedian = 0
-    for (let s = 0; s < satHist.length; s++) {
-      half += satHist[s]
-      if (half >= totalW / 2) {
-        satMedian = s
-        break
-      }
-    }
-    for (let k = 0; k < n; k++) {
-      vals[k] = r.hdop[e0 * nPts + k]
-      wts[k] = areaW[k % nPts]
-    }
-    const hMed = weightedMedian(vals, wts, n)
-    for (let k = 0; k < n; k++) {
-      vals[k] = r.vdop[e0 * nPts + k]
-      wts[k] = areaW[k % nPts]
-    }
-    const vMed = weightedMedian(vals, wts, n)
-    const anyFix = hMax > -Infinity
-    const hMedN = finiteOrNull(hMed)
-    const vMedN = finiteOrNull(vMed)
-    hours.push({
-      time: new Date(hourStart).toISOString(),
-      startMs: hourStart,
-      samples: n,
-      noFixShare: round(noFixW / totalW, 6)!,
-      satellites: { min: minSats, median: satMedian },
-      hdop: { median: round(hMedN), max: anyFix ? round(hMax) : null },
-      vdop: { median: round(vMedN), max: anyFix ? round(vMax) : null },
-      pdopMax: anyFix ? round(pMax) : null,
-      n1HdopMax: anyFix ? round(finiteOrNull(n1Max)) : null,
-      h95M: {
-        median: hMedN === null ? null : round(2 * sigma * hMedN, 6),
-        max: anyFix ? round(2 * sigma * hMax, 6) : null,
-      },
-      v95M: {
-        median: vMedN === null ? null : round(1.96 * sigma * vMedN, 6),
-        max: anyFix ? round(1.96 * sigma * vMax, 6) : null,
-      },
-      workTypes: tests.map((t, k) => {
-        const share = met[k] / totalW
-        const shareN1 = metN1[k] / totalW
-        return { id: t.id, share: round(share, 6)!, shareN1: round(shareN1, 6)!, state: hourState(share, shareN1, t.required, t.requireN1) }
-      }),
-    })
+    hours.push(aggregateHour(agg, e0, e1, hourStart))
     if (input.detailHourMs !== undefined && Math.floor(input.detailHourMs / HOUR_MS) * HOUR_MS === hourStart) {
       detail = { hourStartMs: hourStart, points: pointDetails(points, r, e0, e1, nPts, tests, sigma, horizonMax[setOfEpoch[e0]]) }
     }
@@ -908,6 +822,124 @@ export function forecastField(input: FieldForecastInput, now?: () => number): Fi
       ? { epochsMs: epochs, points: nPts, satellites: r.nSats, hdop: r.hdop, vdop: r.vdop, pdop: r.pdop, n1Hdop: r.n1h, n1Vdop: r.n1v, n1Pdop: r.n1p }
       : undefined,
     stageTimes: now ? { propagationMs: t1 - t0, masksMs: t2 - t1, dopMs: t3 - t2, aggregationMs: t4 - t3 } : undefined,
+  }
+}
+
+/** Working state of the hourly aggregation. */
+interface Aggregation {
+  nPts: number
+  areaW: Float64Array
+  rSats: Uint16Array
+  rH: Float64Array
+  rV: Float64Array
+  rP: Float64Array
+  rN1h: Float64Array
+  rN1v: Float64Array
+  rN1p: Float64Array
+  tests: WorkTest[]
+  nTests: number
+  tMaxH: Float64Array
+  tMaxV: Float64Array
+  tMaxP: Float64Array
+  tMinSats: Float64Array
+  vals: Float64Array
+  wts: Float64Array
+  satHist: Float64Array
+  met: Float64Array
+  metN1: Float64Array
+  sigma: number
+}
+
+/** Aggregates of the epochs [e0, e1) forming the clock hour starting at hourStart. */
+function aggregateHour(a: Aggregation, e0: number, e1: number, hourStart: number): HourAggregate {
+  const { nPts, areaW, rSats, rH, rV, rP, rN1h, rN1v, rN1p, tests, nTests, tMaxH, tMaxV, tMaxP, tMinSats, vals, wts, satHist, met, metN1, sigma } = a
+  const n = (e1 - e0) * nPts
+  let totalW = 0
+  let noFixW = 0
+  let minSats = Infinity
+  let hMax = -Infinity
+  let vMax = -Infinity
+  let pMax = -Infinity
+  let n1Max = -Infinity
+  satHist.fill(0)
+  met.fill(0)
+  metN1.fill(0)
+  for (let e = e0; e < e1; e++) {
+    for (let p = 0; p < nPts; p++) {
+      const i = e * nPts + p
+      const w = areaW[p]
+      totalW += w
+      const ns = rSats[i]
+      if (ns < minSats) minSats = ns
+      satHist[ns] += w
+      const h = rH[i]
+      if (h !== h) {
+        noFixW += w // no fix: meets no work type
+        continue
+      }
+      const v = rV[i]
+      const pd = rP[i]
+      const nh = rN1h[i]
+      const nvv = rN1v[i]
+      const np = rN1p[i]
+      if (h > hMax) hMax = h
+      if (v > vMax) vMax = v
+      if (pd > pMax) pMax = pd
+      if (nh > n1Max) n1Max = nh
+      for (let t = 0; t < nTests; t++) {
+        // Same rule as testSample(), inlined for the hot loop.
+        if (h > tMaxH[t] || ns < tMinSats[t] || pd > tMaxP[t] || v > tMaxV[t]) continue
+        met[t] += w
+        if (ns - 1 >= tMinSats[t] && nh <= tMaxH[t] && np <= tMaxP[t] && nvv <= tMaxV[t]) metN1[t] += w
+      }
+    }
+  }
+  // Weighted medians.
+  let half = 0
+  let satMedian = 0
+  for (let s = 0; s < satHist.length; s++) {
+    half += satHist[s]
+    if (half >= totalW / 2) {
+      satMedian = s
+      break
+    }
+  }
+  for (let k = 0; k < n; k++) {
+    vals[k] = rH[e0 * nPts + k]
+    wts[k] = areaW[k % nPts]
+  }
+  const hMed = weightedMedian(vals, wts, n)
+  for (let k = 0; k < n; k++) {
+    vals[k] = rV[e0 * nPts + k]
+    wts[k] = areaW[k % nPts]
+  }
+  const vMed = weightedMedian(vals, wts, n)
+  const anyFix = hMax > -Infinity
+  const hMedN = finiteOrNull(hMed)
+  const vMedN = finiteOrNull(vMed)
+  return {
+    time: new Date(hourStart).toISOString(),
+    startMs: hourStart,
+    samples: n,
+    noFixShare: round(noFixW / totalW, 6)!,
+    satellites: { min: minSats, median: satMedian },
+    hdop: { median: round(hMedN), max: anyFix ? round(hMax) : null },
+    vdop: { median: round(vMedN), max: anyFix ? round(vMax) : null },
+    pdopMax: anyFix ? round(pMax) : null,
+    n1HdopMax: anyFix ? round(finiteOrNull(n1Max)) : null,
+    h95M: {
+      median: hMedN === null ? null : round(2 * sigma * hMedN, 6),
+      max: anyFix ? round(2 * sigma * hMax, 6) : null,
+    },
+    v95M: {
+      median: vMedN === null ? null : round(1.96 * sigma * vMedN, 6),
+      max: anyFix ? round(1.96 * sigma * vMax, 6) : null,
+    },
+    workTypes: tests.map((t, k) => {
+      const share = met[k] / totalW
+      const shareN1 = metN1[k] / totalW
+      return { id: t.id, share: round(share, 6)!, shareN1: round(shareN1, 6)!, state: hourState(share, shareN1, t.required, t.requireN1) }
+    }),
   }
 }
 

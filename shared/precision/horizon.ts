@@ -124,8 +124,8 @@ function maskSegment(mask: Float64Array, x1: number, y1: number, x2: number, y2:
   const fx = x1 + t * dx
   const fy = y1 + t * dy
   const p = Math.hypot(fx, fy)
-  let a1 = Math.atan2(x1, y1) * RAD
-  let a2 = Math.atan2(x2, y2) * RAD
+  const a1 = Math.atan2(x1, y1) * RAD
+  const a2 = Math.atan2(x2, y2) * RAD
   if (p < 1e-6) {
     // The line passes through the point: only the directions of the segment parts are hit.
     if (t > 1e-9 && t < 1 - 1e-9) {
