@@ -92,6 +92,36 @@ function adminManaged(base: string): Record<string, Row> {
   }
 }
 
+// Fields, obstructions and orbit sets (tests/api/fields, obstructions, orbits, imports, outages).
+async function rtkLevel(f: Fixtures): Promise<number> {
+  const repos = f.server.repos.fields
+  return (await repos.serviceLevelIdByName('RTK')) ?? repos.insertServiceLevel({ name: 'RTK', sigmaUereM: 0.012, note: '' })
+}
+const matrixSquare = {
+  type: 'Polygon',
+  coordinates: [[[-93.70, 42.00], [-93.69, 42.00], [-93.69, 42.01], [-93.70, 42.01], [-93.70, 42.00]]],
+}
+async function throwawayField(f: Fixtures): Promise<number> {
+  return f.server.repos.fields.insert({
+    farmId: f.farmId, name: unique('Matrix field '), crop: '', notes: '', serviceLevelId: await rtkLevel(f), antennaHeightM: 3,
+    boundary: JSON.stringify(matrixSquare), areaHa: 91, centroidLat: 42.005, centroidLon: -93.695,
+  })
+}
+const matrixTreeLine = { type: 'LineString', coordinates: [[-93.70, 42.0], [-93.69, 42.0]] }
+async function throwawayObstruction(f: Fixtures): Promise<number> {
+  return f.server.repos.obstructions.insert({
+    farmId: f.farmId, kind: 'evergreen', heightM: 12, geometry: JSON.stringify(matrixTreeLine), leaflessFrom: null, leaflessTo: null, note: '',
+  })
+}
+async function throwawayOrbitSet(f: Fixtures): Promise<number> {
+  return f.server.repos.orbits.insertSet(
+    { name: unique('Matrix set '), source: 'upload', format: 'tle', content: '', satelliteCount: 0, skippedCount: 0, reportJson: '[]', oldestEpoch: null, newestEpoch: null, uploadedBy: null },
+    [],
+  )
+}
+const farmEditors = (status: number) => only(['admin', 'office', 'contractor'], status)
+const orbitStaff = (status: number) => only(['admin', 'office'], status)
+
 // ---- the table ----------------------------------------------------------------------
 const matrix: Record<string, Row> = {
   'GET /api/health': { expect: everyone(200) },
@@ -149,6 +179,28 @@ const matrix: Record<string, Row> = {
     expect: only(['admin', 'office'], 200),
   },
 
+  'GET /api/farms/:id/fields': { call: (f) => ({ params: { id: f.farmId } }), expect: { ...signedIn(200), otherClient: 404 } },
+  'POST /api/farms/:id/fields': {
+    call: async (f) => ({ params: { id: f.farmId }, body: { name: unique('Matrix field '), serviceLevelId: await rtkLevel(f), boundary: matrixSquare } }),
+    expect: farmEditors(201),
+  },
+  'GET /api/fields/:id': { call: async (f) => ({ params: { id: await throwawayField(f) } }), expect: { ...signedIn(200), otherClient: 404 } },
+  'PATCH /api/fields/:id': { call: async (f) => ({ params: { id: await throwawayField(f) }, body: { notes: 'matrix' } }), expect: farmEditors(200) },
+  'DELETE /api/fields/:id': { call: async (f) => ({ params: { id: await throwawayField(f) } }), expect: farmEditors(204) },
+  'GET /api/farms/:id/obstructions': { call: (f) => ({ params: { id: f.farmId } }), expect: { ...signedIn(200), otherClient: 404 } },
+  'POST /api/farms/:id/obstructions': {
+    call: (f) => ({ params: { id: f.farmId }, body: { kind: 'structure', heightM: 8, geometry: matrixTreeLine } }),
+    expect: farmEditors(201),
+  },
+  'PATCH /api/obstructions/:id': { call: async (f) => ({ params: { id: await throwawayObstruction(f) }, body: { heightM: 13 } }), expect: farmEditors(200) },
+  'DELETE /api/obstructions/:id': { call: async (f) => ({ params: { id: await throwawayObstruction(f) } }), expect: farmEditors(204) },
+  'GET /api/orbit-sets': { expect: orbitStaff(200) },
+  'POST /api/orbit-sets': { call: () => ({ body: {} }), expect: orbitStaff(400) },
+  'GET /api/orbit-sets/:id': { call: async (f) => ({ params: { id: await throwawayOrbitSet(f) } }), expect: orbitStaff(200) },
+  'DELETE /api/orbit-sets/:id': { call: async (f) => ({ params: { id: await throwawayOrbitSet(f) } }), expect: orbitStaff(204) },
+  'GET /api/orbits/active': { expect: orbitStaff(200) },
+  'PUT /api/orbits/active': { call: () => ({ body: [{ system: 'GPS', orbitSetId: null, enabled: true }] }), expect: orbitStaff(200) },
+  'GET /api/orbit-data': { expect: signedIn(200) },
   ...adminManaged('/api/service-levels'),
   ...adminManaged('/api/work-types'),
   ...adminManaged('/api/machines'),
