@@ -16,12 +16,19 @@ import type { Services } from '../services/index.ts'
 export interface AuthRateLimits {
   /** Failed sign-ins allowed per IP address and e-mail in `windowMs`. */
   signInPerEmail: number
+  /** Failed sign-ins allowed per IP address over all e-mail addresses in `windowMs`. */
+  signInPerIp: number
   /** Reset requests allowed per IP address in `windowMs`. */
   resetPerIp: number
   windowMs: number
 }
 
-export const defaultAuthRateLimits: AuthRateLimits = { signInPerEmail: 10, resetPerIp: 20, windowMs: 15 * 60_000 }
+export const defaultAuthRateLimits: AuthRateLimits = {
+  signInPerEmail: 10,
+  signInPerIp: 100,
+  resetPerIp: 20,
+  windowMs: 15 * 60_000,
+}
 
 function limiter(options: Partial<Options> & { message: string }) {
   const { message, ...rest } = options
@@ -49,6 +56,13 @@ export function authRoutes(services: Services, limits: AuthRateLimits = defaultA
     keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${emailOf(req.body)}`,
     message: `Too many sign-in attempts for this address. Wait ${minutes} minutes and try again.`,
   })
+  const signInIpLimiter = limiter({
+    windowMs: limits.windowMs,
+    limit: limits.signInPerIp,
+    skipSuccessfulRequests: true,
+    keyGenerator: (req) => ipKeyGenerator(req.ip ?? ''),
+    message: `Too many failed sign-ins from this network. Wait ${minutes} minutes and try again.`,
+  })
   const resetLimiter = limiter({
     windowMs: limits.windowMs,
     limit: limits.resetPerIp,
@@ -57,7 +71,7 @@ export function authRoutes(services: Services, limits: AuthRateLimits = defaultA
   })
   const auth = services.auth
 
-  router.post('/sign-in', signInLimiter, async (req, res) => {
+  router.post('/sign-in', signInIpLimiter, signInLimiter, async (req, res) => {
     const input = parse(signInSchema, req.body)
     const { user, cookie } = await auth.signIn(input)
     res.append('Set-Cookie', cookie).json(user)

@@ -1,7 +1,15 @@
 // Farms: who sees which, paging / sorting / search, validation with field messages, the
 // admin-only changes and their all-or-nothing writes.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { Client, demo, signIn, startTestServer, unique, type TestServer } from '../support/server.ts'
+import {
+  Client,
+  createUserWithPassword,
+  demo,
+  signIn,
+  startTestServer,
+  unique,
+  type TestServer,
+} from '../support/server.ts'
 
 let server: TestServer
 let admin: Client
@@ -59,12 +67,15 @@ describe('who sees which farm', () => {
 
   it('a client linked later sees the farm at once', async () => {
     const farm = await createFarm()
-    expect((await north.get(`/api/farms/${farm.id}`)).status).toBe(404)
-    const me = (await north.get('/api/auth/me')).body
-    await admin.patch(`/api/farms/${farm.id}`, { clientIds: [me.id] })
-    expect((await north.get(`/api/farms/${farm.id}`)).status).toBe(200)
+    const user = await createUserWithPassword(server, { role: 'client' })
+    const client = await signIn(server.app, user.email, user.password)
+    expect((await client.get(`/api/farms/${farm.id}`)).status).toBe(404)
+    await admin.patch(`/api/farms/${farm.id}`, { clientIds: [user.id] })
+    expect((await client.get(`/api/farms/${farm.id}`)).status).toBe(200)
+    expect((await client.get('/api/farms')).body.total).toBe(1)
     await admin.patch(`/api/farms/${farm.id}`, { clientIds: [] })
-    expect((await north.get(`/api/farms/${farm.id}`)).status).toBe(404)
+    expect((await client.get(`/api/farms/${farm.id}`)).status).toBe(404)
+    expect((await client.get('/api/farms')).body).toMatchObject({ items: [], total: 0 })
   })
 })
 
@@ -107,8 +118,14 @@ describe('paging, sorting and search', () => {
 })
 
 describe('admin changes', () => {
+  // Links go to disposable client users: the demo clients' farms stay as seeded.
+  async function disposableClient() {
+    const user = await createUserWithPassword(server, { role: 'client' })
+    return (await admin.get(`/api/users/${user.id}`)).body as { id: number; name: string; email: string }
+  }
+
   it('creates a farm with linked clients', async () => {
-    const northUser = (await north.get('/api/auth/me')).body
+    const northUser = await disposableClient()
     const res = await admin.post('/api/farms', {
       name: `  ${unique('Prairie Dell ')}  `,
       timeZone: 'America/Denver',
@@ -153,7 +170,7 @@ describe('admin changes', () => {
   })
 
   it('a patch changes only the fields it names', async () => {
-    const northUser = (await north.get('/api/auth/me')).body
+    const northUser = await disposableClient()
     const farm = await createFarm({ address: 'Keep me', notes: 'Keep these notes', clientIds: [northUser.id] })
     const res = await admin.patch(`/api/farms/${farm.id}`, { timeZone: 'Europe/Berlin' })
     expect(res.status).toBe(200)
