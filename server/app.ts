@@ -18,8 +18,10 @@ import type { Mailer } from './mail/transport.ts'
 import { authRoutes, defaultAuthRateLimits, type AuthRateLimits } from './routes/auth.ts'
 import { farmRoutes } from './routes/farms.ts'
 import { fieldRoutes } from './routes/fields.ts'
+import { importRoutes } from './routes/imports.ts'
 import { obstructionRoutes } from './routes/obstructions.ts'
 import { orbitRoutes } from './routes/orbits.ts'
+import { outageRoutes } from './routes/outages.ts'
 import { machineRoutes } from './routes/machines.ts'
 import { mailboxRoutes } from './routes/mailbox.ts'
 import { serviceLevelRoutes } from './routes/serviceLevels.ts'
@@ -114,6 +116,8 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
   api.use(fieldRoutes(services))
   api.use(obstructionRoutes(services))
   api.use(orbitRoutes(services))
+  api.use(importRoutes(services))
+  api.use('/outages', outageRoutes(services))
   api.use('/service-levels', serviceLevelRoutes(services))
   api.use('/work-types', workTypeRoutes(services))
   api.use('/machines', machineRoutes(services))

@@ -2,8 +2,10 @@ import { createAuthService } from './auth.ts'
 import type { ServiceContext } from './context.ts'
 import { createFarmsService } from './farms.ts'
 import { createFieldsService } from './fields.ts'
+import { createImportsService } from './imports.ts'
 import { createObstructionsService } from './obstructions.ts'
 import { createOrbitsService } from './orbits.ts'
+import { createOutagesService } from './outages.ts'
 import { createMailboxService } from './mailbox.ts'
 import { createMachinesService } from './machines.ts'
 import { createServiceLevelsService } from './serviceLevels.ts'
@@ -21,6 +23,8 @@ export function createServices(ctx: ServiceContext) {
     fields: createFieldsService(ctx),
     obstructions: createObstructionsService(ctx),
     orbits: createOrbitsService(ctx),
+    imports: createImportsService(ctx),
+    outages: createOutagesService(ctx),
     serviceLevels: createServiceLevelsService(ctx),
     workTypes: createWorkTypesService(ctx),
     machines: createMachinesService(ctx),

@@ -119,6 +119,9 @@ async function throwawayOrbitSet(f: Fixtures): Promise<number> {
     [],
   )
 }
+async function throwawayOutage(f: Fixtures): Promise<number> {
+  return f.server.repos.outages.insert({ satId: 'GB2', fromAt: new Date('2030-02-01T00:00:00Z'), toAt: new Date('2030-02-02T00:00:00Z'), note: '', createdBy: null })
+}
 const farmEditors = (status: number) => only(['admin', 'office', 'contractor'], status)
 const orbitStaff = (status: number) => only(['admin', 'office'], status)
 
@@ -201,6 +204,18 @@ const matrix: Record<string, Row> = {
   'GET /api/orbits/active': { expect: orbitStaff(200) },
   'PUT /api/orbits/active': { call: () => ({ body: [{ system: 'GPS', orbitSetId: null, enabled: true }] }), expect: orbitStaff(200) },
   'GET /api/orbit-data': { expect: signedIn(200) },
+  'POST /api/farms/:id/fields/import/preview': {
+    call: (f) => ({ params: { id: f.farmId }, body: {} }),
+    expect: { ...farmEditors(400) },
+  },
+  'POST /api/farms/:id/fields/import': { call: (f) => ({ params: { id: f.farmId }, body: {} }), expect: farmEditors(400) },
+  'GET /api/outages': { expect: orbitStaff(200) },
+  'POST /api/outages': {
+    call: () => ({ body: { satId: 'GA1', from: '2030-01-01T00:00:00Z', to: '2030-01-01T06:00:00Z', note: 'matrix' } }),
+    expect: orbitStaff(201),
+  },
+  'PATCH /api/outages/:id': { call: async (f) => ({ params: { id: await throwawayOutage(f) }, body: { note: 'matrix' } }), expect: orbitStaff(200) },
+  'DELETE /api/outages/:id': { call: async (f) => ({ params: { id: await throwawayOutage(f) } }), expect: orbitStaff(204) },
   ...adminManaged('/api/service-levels'),
   ...adminManaged('/api/work-types'),
   ...adminManaged('/api/machines'),
