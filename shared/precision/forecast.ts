@@ -797,7 +797,7 @@ export function forecastField(input: FieldForecastInput, now?: () => number): Fi
   const tMaxV = Float64Array.from(tests, (t) => t.maxV)
   const tMaxP = Float64Array.from(tests, (t) => t.maxPdop)
   const tMinSats = Float64Array.from(tests, (t) => t.minSats)
-  const agg: Aggregation = { nPts, areaW, rSats, rH, rV, rP, rN1h, rN1v, rN1p, tests, nTests, tMaxH, tMaxV, tMaxP, tMinSats, vals, wts, satHist, met, metN1, sigma }
+  const agg: Aggregation = { nPts, areaW, rSats, rH, rV, rP, rN1h, rN1v, rN1p, tests, nTests, tMaxH, tMaxV, tMaxP, tMinSats, vals, wts, satHist, met, metN1, sigma, stats: new Float64Array(7) }
   let e0 = 0
   while (e0 < nEp) {
     const hourStart = Math.floor(epochs[e0] / HOUR_MS) * HOUR_MS
@@ -848,12 +848,17 @@ interface Aggregation {
   met: Float64Array
   metN1: Float64Array
   sigma: number
+  /** scratch for accumulateHour */
+  stats: Float64Array
 }
 
-/** Aggregates of the epochs [e0, e1) forming the clock hour starting at hourStart. */
-function aggregateHour(a: Aggregation, e0: number, e1: number, hourStart: number): HourAggregate {
-  const { nPts, areaW, rSats, rH, rV, rP, rN1h, rN1v, rN1p, tests, nTests, tMaxH, tMaxV, tMaxP, tMinSats, vals, wts, satHist, met, metN1, sigma } = a
-  const n = (e1 - e0) * nPts
+/**
+ * The per-sample pass of an hour: weights, no-fix share, minima/maxima, satellite
+ * histogram and work-type shares. Results in st: [totalW, noFixW, minSats, hMax, vMax,
+ * pMax, n1Max]; satHist, met and metN1 are filled. Kept small so it compiles quickly.
+ */
+function accumulateHour(a: Aggregation, e0: number, e1: number, st: Float64Array): void {
+  const { nPts, areaW, rSats, rH, rV, rP, rN1h, rN1v, rN1p, nTests, tMaxH, tMaxV, tMaxP, tMinSats, satHist, met, metN1 } = a
   let totalW = 0
   let noFixW = 0
   let minSats = Infinity
@@ -894,6 +899,28 @@ function aggregateHour(a: Aggregation, e0: number, e1: number, hourStart: number
       }
     }
   }
+  st[0] = totalW
+  st[1] = noFixW
+  st[2] = minSats
+  st[3] = hMax
+  st[4] = vMax
+  st[5] = pMax
+  st[6] = n1Max
+}
+
+/** Aggregates of the epochs [e0, e1) forming the clock hour starting at hourStart. */
+function aggregateHour(a: Aggregation, e0: number, e1: number, hourStart: number): HourAggregate {
+  const { nPts, areaW, rH, rV, tests, vals, wts, satHist, met, metN1, sigma } = a
+  const n = (e1 - e0) * nPts
+  const st = a.stats
+  accumulateHour(a, e0, e1, st)
+  const totalW = st[0]
+  const noFixW = st[1]
+  const minSats = st[2]
+  const hMax = st[3]
+  const vMax = st[4]
+  const pMax = st[5]
+  const n1Max = st[6]
   // Weighted medians.
   let half = 0
   let satMedian = 0
