@@ -22,6 +22,8 @@ import { importRoutes } from './routes/imports.ts'
 import { obstructionRoutes } from './routes/obstructions.ts'
 import { orbitRoutes } from './routes/orbits.ts'
 import { outageRoutes } from './routes/outages.ts'
+import { forecastRoutes } from './routes/forecasts.ts'
+import { jobRoutes } from './routes/jobs.ts'
 import { machineRoutes } from './routes/machines.ts'
 import { mailboxRoutes } from './routes/mailbox.ts'
 import { serviceLevelRoutes } from './routes/serviceLevels.ts'
@@ -121,6 +123,8 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
   api.use('/service-levels', serviceLevelRoutes(services))
   api.use('/work-types', workTypeRoutes(services))
   api.use('/machines', machineRoutes(services))
+  api.use('/jobs', jobRoutes(services))
+  api.use(forecastRoutes(services))
   api.use(apiNotFound)
   app.use('/api', api)
 

@@ -13,6 +13,15 @@ const port = (fallback: number) =>
     .transform((v) => (v === undefined || v === '' ? fallback : Number(v)))
     .pipe(z.number().int().min(0).max(65535))
 
+/** A whole number in [lo, hi]; empty or missing gives the fallback. */
+const intIn = (lo: number, hi: number, fallback: number) =>
+  z
+    .string()
+    .trim()
+    .optional()
+    .transform((v) => (v === undefined || v === '' ? fallback : Number(v)))
+    .pipe(z.number().int(`must be a whole number from ${lo} to ${hi}`).min(lo).max(hi))
+
 const optionalString = z
   .string()
   .trim()
@@ -33,6 +42,16 @@ const envSchema = z.object({
   FAKE_SMTP_PORT: port(2525),
   MAIL_FROM: optionalString,
   LOG_LEVEL: optionalString.pipe(z.enum(logLevels).optional()),
+  JOB_CONCURRENCY: intIn(1, 16, 2),
+  JOBS_ENABLED: optionalString.pipe(z.enum(['true', 'false', '1', '0']).optional()),
+  FORECAST_STEP_MIN: intIn(1, 60, 5),
+  FORECAST_SAMPLES: intIn(8, 400, 64),
+  NIGHTLY_REFRESH_TIME: optionalString.pipe(
+    z
+      .string()
+      .regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'NIGHTLY_REFRESH_TIME must be HH:MM (24 h), e.g. 02:00')
+      .optional(),
+  ),
 })
 
 export interface Config {
@@ -50,6 +69,15 @@ export interface Config {
   fakeSmtpPort: number
   mailFrom: string
   logLevel: LogLevel
+  /** Forecast jobs that run at once in this process (each on its own worker thread). */
+  jobConcurrency: number
+  /** False: this process serves the API only and runs no jobs (another process does). */
+  jobsEnabled: boolean
+  /** Minutes between forecast epochs and the number of sample points per field. */
+  forecastStepMin: number
+  forecastSampleCount: number
+  /** Server-local time ('HH:MM') of the nightly refresh that rolls the window forward. */
+  nightlyRefreshTime: string
 }
 
 /** Parses the environment (process.env unless given); throws an Error listing every bad variable. */
@@ -79,6 +107,11 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     fakeSmtpPort: e.FAKE_SMTP_PORT,
     mailFrom: e.MAIL_FROM ?? 'Skyfurrow <plans@skyfurrow.test>',
     logLevel: e.LOG_LEVEL ?? (e.NODE_ENV === 'test' ? 'warn' : 'info'),
+    jobConcurrency: e.JOB_CONCURRENCY,
+    jobsEnabled: e.JOBS_ENABLED === undefined || e.JOBS_ENABLED === 'true' || e.JOBS_ENABLED === '1',
+    forecastStepMin: e.FORECAST_STEP_MIN,
+    forecastSampleCount: e.FORECAST_SAMPLES,
+    nightlyRefreshTime: e.NIGHTLY_REFRESH_TIME ?? '02:00',
   }
 }
 

@@ -1,12 +1,15 @@
 // `tsx server/index.ts`: starts Skyfurrow. Listens on HOST:PORT, serves the API and the built
-// client, runs the local fake SMTP server when SMTP_URL is empty, and on SIGINT/SIGTERM
-// closes the HTTP server, the fake SMTP server and the database pool, then exits 0.
+// client, runs the local fake SMTP server when SMTP_URL is empty and the forecast jobs, and
+// on SIGINT/SIGTERM closes the HTTP server, puts running jobs back in the queue, closes the
+// fake SMTP server and the database pool, then exits 0.
 import { createServer } from 'node:http'
 import type { AddressInfo } from 'node:net'
 import { createApp } from './app.ts'
 import { loadConfig, withListeningPort } from './config.ts'
 import { openDatabase } from './db/index.ts'
-import { createRepositories } from './db/repositories/index.ts'
+import { createRepositories, createStore } from './db/repositories/index.ts'
+import { setListenerErrorHandler } from './events.ts'
+import { startJobs } from './jobs/index.ts'
 import { createLogger } from './logger.ts'
 import { startFakeSmtp, type FakeSmtp } from './mail/fake-smtp.ts'
 import { createMailer } from './mail/transport.ts'
@@ -47,6 +50,10 @@ server.on('request', createApp({ config, db: database.db, mailer, logger }))
 const shownHost = config.host.includes(':') ? `[${config.host}]` : config.host
 console.log(`Skyfurrow listening on http://${shownHost}:${config.port}`)
 
+// Forecast jobs: triggers on changes, the runner (worker threads), start-up recovery and sweep.
+setListenerErrorHandler((name, error) => logger.error(`listener of ${name} failed`, error))
+const jobs = await startJobs({ store: createStore(database.db), config, logger })
+
 let stopping = false
 async function shutdown(signal: string): Promise<void> {
   if (stopping) return
@@ -61,6 +68,7 @@ async function shutdown(signal: string): Promise<void> {
     server.close(() => resolve())
     server.closeIdleConnections()
   })
+  await jobs.stop()
   mailer.close()
   if (fakeSmtp) await fakeSmtp.close()
   await database.close()

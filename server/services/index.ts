@@ -7,6 +7,8 @@ import { createObstructionsService } from './obstructions.ts'
 import { createOrbitsService } from './orbits.ts'
 import { createOutagesService } from './outages.ts'
 import { createMailboxService } from './mailbox.ts'
+import { createForecastsService } from './forecasts.ts'
+import { createJobsService } from './jobs.ts'
 import { createMachinesService } from './machines.ts'
 import { createServiceLevelsService } from './serviceLevels.ts'
 import { createWorkTypesService } from './workTypes.ts'
@@ -28,6 +30,8 @@ export function createServices(ctx: ServiceContext) {
     serviceLevels: createServiceLevelsService(ctx),
     workTypes: createWorkTypesService(ctx),
     machines: createMachinesService(ctx),
+    jobs: createJobsService(ctx),
+    forecasts: createForecastsService(ctx),
   }
 }
 export type Services = ReturnType<typeof createServices>

@@ -8,6 +8,8 @@ import { obstructionsRepository } from './obstructions.ts'
 import { orbitsRepository } from './orbits.ts'
 import { outagesRepository } from './outages.ts'
 import { mailboxRepository } from './mailbox.ts'
+import { forecastsRepository } from './forecasts.ts'
+import { jobsRepository } from './jobs.ts'
 import { machinesRepository } from './machines.ts'
 import { serviceLevelsRepository } from './serviceLevels.ts'
 import { workTypesRepository } from './workTypes.ts'
@@ -26,6 +28,8 @@ export function createRepositories(db: DbOrTx) {
     serviceLevels: serviceLevelsRepository(db),
     workTypes: workTypesRepository(db),
     machines: machinesRepository(db),
+    jobs: jobsRepository(db),
+    forecasts: forecastsRepository(db),
     fields: fieldsRepository(db),
     obstructions: obstructionsRepository(db),
     orbits: orbitsRepository(db),

@@ -1,0 +1,215 @@
+// Queries for forecast jobs and the stored forecast hours: the inputs of a field's forecast
+// (field, farm obstructions, active work types with their sigma), which fields a change
+// affects, and the per-field replacement of the stored hours in one transaction.
+import { and, asc, count, eq, getTableColumns, gte, inArray, lt, max, min, or, sql } from 'drizzle-orm'
+import type { DbOrTx } from '../index.ts'
+import { farms } from '../schema.ts'
+import {
+  fields,
+  forecastHours,
+  obstructions,
+  serviceLevels,
+  workTypes,
+  type FieldRow,
+  type ForecastHourRow,
+  type ObstructionRow,
+  type WorkTypeRow,
+} from '../schema-planning.ts'
+
+export type NewForecastHour = Omit<ForecastHourRow, 'computedAt'> & { computedAt: Date }
+
+export interface StoredForecastMeta {
+  fieldId: number
+  hours: number
+  firstHour: Date | null
+  lastHour: Date | null
+  /** Lowest and highest inputs version stored (equal when the forecast is one piece). */
+  minVersion: string | null
+  maxVersion: string | null
+  computedAt: Date | null
+  orbitSummary: string | null
+  maxJobId: number | null
+}
+
+/** An upsert overwrites every column but the key (field, hour) with the new row's value. */
+const upsertSet = Object.fromEntries(
+  Object.entries(getTableColumns(forecastHours))
+    .filter(([key]) => key !== 'fieldId' && key !== 'hourStart')
+    .map(([key, column]) => [key, sql`VALUES(${sql.identifier(column.name)})`]),
+)
+
+export function forecastsRepository(db: DbOrTx) {
+  return {
+    /** The field with the sigma of its service level, or null. */
+    async fieldWithSigma(fieldId: number): Promise<(FieldRow & { sigmaUereM: number; farmName: string }) | null> {
+      const [row] = await db
+        .select({ field: fields, sigmaUereM: serviceLevels.sigmaUereM, farmName: farms.name })
+        .from(fields)
+        .innerJoin(serviceLevels, eq(serviceLevels.id, fields.serviceLevelId))
+        .innerJoin(farms, eq(farms.id, fields.farmId))
+        .where(eq(fields.id, fieldId))
+        .limit(1)
+      return row ? { ...row.field, sigmaUereM: row.sigmaUereM, farmName: row.farmName } : null
+    },
+
+    async obstructionsOfFarm(farmId: number): Promise<ObstructionRow[]> {
+      return db.select().from(obstructions).where(eq(obstructions.farmId, farmId)).orderBy(asc(obstructions.id))
+    },
+
+    /** Obstructions of several farms at once (the start-up sweep). */
+    async obstructionsOfFarms(farmIds: number[]): Promise<ObstructionRow[]> {
+      if (farmIds.length === 0) return []
+      return db.select().from(obstructions).where(inArray(obstructions.farmId, farmIds)).orderBy(asc(obstructions.id))
+    },
+
+    /** Active work types in display order, each with the sigma of its service level. */
+    async activeWorkTypes(): Promise<Array<WorkTypeRow & { sigmaUereM: number }>> {
+      const rows = await db
+        .select({ wt: workTypes, sigmaUereM: serviceLevels.sigmaUereM })
+        .from(workTypes)
+        .innerJoin(serviceLevels, eq(serviceLevels.id, workTypes.serviceLevelId))
+        .where(eq(workTypes.active, true))
+        .orderBy(asc(workTypes.sortOrder), asc(workTypes.name), asc(workTypes.id))
+      return rows.map((r) => ({ ...r.wt, sigmaUereM: r.sigmaUereM }))
+    },
+
+    /** Every field with the sigma of its service level (the start-up sweep). */
+    async allFieldsWithSigma(): Promise<Array<FieldRow & { sigmaUereM: number }>> {
+      const rows = await db
+        .select({ field: fields, sigmaUereM: serviceLevels.sigmaUereM })
+        .from(fields)
+        .innerJoin(serviceLevels, eq(serviceLevels.id, fields.serviceLevelId))
+        .orderBy(asc(fields.id))
+      return rows.map((r) => ({ ...r.field, sigmaUereM: r.sigmaUereM }))
+    },
+
+    /** Ids (and farms) of fields: all, of a farm, or using some service levels. */
+    async fieldIds(filter: { farmId?: number; serviceLevelIds?: number[] } = {}): Promise<Array<{ id: number; farmId: number }>> {
+      if (filter.serviceLevelIds && filter.serviceLevelIds.length === 0) return []
+      const where = filter.farmId
+        ? eq(fields.farmId, filter.farmId)
+        : filter.serviceLevelIds
+          ? inArray(fields.serviceLevelId, filter.serviceLevelIds)
+          : undefined
+      return db.select({ id: fields.id, farmId: fields.farmId }).from(fields).where(where).orderBy(asc(fields.id))
+    },
+
+    /** Whether any active work type uses one of the service levels. */
+    async workTypesUseLevels(serviceLevelIds: number[]): Promise<boolean> {
+      if (serviceLevelIds.length === 0) return false
+      const [{ n }] = await db
+        .select({ n: count() })
+        .from(workTypes)
+        .where(and(inArray(workTypes.serviceLevelId, serviceLevelIds), eq(workTypes.active, true)))
+      return n > 0
+    },
+
+    async fieldBasics(fieldIds: number[]): Promise<Map<number, { id: number; name: string; farmId: number }>> {
+      const map = new Map<number, { id: number; name: string; farmId: number }>()
+      if (fieldIds.length === 0) return map
+      const rows = await db
+        .select({ id: fields.id, name: fields.name, farmId: fields.farmId })
+        .from(fields)
+        .where(inArray(fields.id, fieldIds))
+      for (const r of rows) map.set(r.id, r)
+      return map
+    },
+
+    async fieldsOfFarm(farmId: number): Promise<Array<{ id: number; name: string; farmId: number }>> {
+      return db
+        .select({ id: fields.id, name: fields.name, farmId: fields.farmId })
+        .from(fields)
+        .where(eq(fields.farmId, farmId))
+        .orderBy(asc(fields.name), asc(fields.id))
+    },
+
+    /** What is stored per field: hour count, first/last hour, versions, when, by which job. */
+    async storedMeta(fieldIds?: number[]): Promise<Map<number, StoredForecastMeta>> {
+      const map = new Map<number, StoredForecastMeta>()
+      if (fieldIds && fieldIds.length === 0) return map
+      const rows = await db
+        .select({
+          fieldId: forecastHours.fieldId,
+          hours: count(),
+          firstHour: min(forecastHours.hourStart),
+          lastHour: max(forecastHours.hourStart),
+          minVersion: min(forecastHours.inputsVersion),
+          maxVersion: max(forecastHours.inputsVersion),
+          computedAt: max(forecastHours.computedAt),
+          orbitSummary: max(forecastHours.orbitSummary),
+          maxJobId: max(forecastHours.jobId),
+        })
+        .from(forecastHours)
+        .where(fieldIds ? inArray(forecastHours.fieldId, fieldIds) : undefined)
+        .groupBy(forecastHours.fieldId)
+      for (const r of rows) map.set(r.fieldId, { ...r, maxJobId: r.maxJobId === null ? null : Number(r.maxJobId) })
+      return map
+    },
+
+    /** Stored hours of fields in [from, to), ordered by field and hour. */
+    async hours(fieldIds: number[], from: Date, to: Date): Promise<ForecastHourRow[]> {
+      if (fieldIds.length === 0) return []
+      return db
+        .select()
+        .from(forecastHours)
+        .where(and(inArray(forecastHours.fieldId, fieldIds), gte(forecastHours.hourStart, from), lt(forecastHours.hourStart, to)))
+        .orderBy(asc(forecastHours.fieldId), asc(forecastHours.hourStart))
+    },
+
+    /**
+     * Replaces a field's stored forecast with `rows` (one job's result). Call inside a
+     * transaction: the field row is locked first (FOR UPDATE), so two jobs of one field
+     * store one after the other; a result older than what is stored (lower job id) is not
+     * written. Hours outside [windowStart, windowEnd) are deleted; the window's hours are
+     * upserted. Returns what happened.
+     */
+    async replaceField(
+      fieldId: number,
+      jobId: number,
+      windowStart: Date,
+      windowEnd: Date,
+      rows: NewForecastHour[],
+    ): Promise<'stored' | 'field-gone' | 'newer-stored'> {
+      const [field] = await db.select({ id: fields.id }).from(fields).where(eq(fields.id, fieldId)).for('update')
+      if (!field) return 'field-gone'
+      const [{ newest }] = await db
+        .select({ newest: max(forecastHours.jobId) })
+        .from(forecastHours)
+        .where(eq(forecastHours.fieldId, fieldId))
+      if (newest !== null && Number(newest) > jobId) return 'newer-stored'
+      // The field row is locked, so the set of its hours cannot change under us: delete the
+      // ones outside the window by key (record locks only, no gap locks on other fields).
+      const outside = await db
+        .select({ hourStart: forecastHours.hourStart })
+        .from(forecastHours)
+        .where(
+          and(
+            eq(forecastHours.fieldId, fieldId),
+            or(lt(forecastHours.hourStart, windowStart), gte(forecastHours.hourStart, windowEnd)),
+          ),
+        )
+      if (outside.length) {
+        await db.delete(forecastHours).where(
+          and(
+            eq(forecastHours.fieldId, fieldId),
+            inArray(
+              forecastHours.hourStart,
+              outside.map((o) => o.hourStart),
+            ),
+          ),
+        )
+      }
+      if (rows.length) {
+        await db.insert(forecastHours).values(rows).onDuplicateKeyUpdate({ set: upsertSet })
+      }
+      return 'stored'
+    },
+
+    /** Deletes stored hours that start before `before` (older than the window). */
+    async pruneBefore(before: Date): Promise<number> {
+      const [res] = await db.delete(forecastHours).where(lt(forecastHours.hourStart, before))
+      return res.affectedRows
+    },
+  }
+}
+export type ForecastsRepository = ReturnType<typeof forecastsRepository>

@@ -1,0 +1,75 @@
+// Writing job rows: one transaction per enqueue, retried when two processes enqueue the
+// same key at once (MariaDB then reports a deadlock for one of them, which is safe to
+// retry). A process that runs jobs registers a wake-up so that new work starts at once
+// instead of at the next poll.
+import type { JobReason } from '../../shared/schemas/jobs.ts'
+import type { EnqueueMode, NewJob } from '../db/repositories/jobs.ts'
+import type { Repositories, Store } from '../db/repositories/index.ts'
+import type { JobRow } from '../db/schema-planning.ts'
+
+export const forecastKey = (fieldId: number) => `forecast:field:${fieldId}`
+
+const wakeups = new Set<() => void>()
+
+/** Called after every enqueue that added a job (the local runner claims it right away). */
+export function onEnqueued(wake: () => void): () => void {
+  wakeups.add(wake)
+  return () => wakeups.delete(wake)
+}
+
+function isRetryable(error: unknown): boolean {
+  let e: unknown = error
+  for (let depth = 0; e && depth < 4; depth++) {
+    const code = (e as { code?: string }).code
+    if (code === 'ER_LOCK_DEADLOCK' || code === 'ER_LOCK_WAIT_TIMEOUT') return true
+    e = (e as { cause?: unknown }).cause
+  }
+  return false
+}
+
+/** Runs `work` in a transaction, retrying a few times on deadlock or lock-wait timeout. */
+export async function withDeadlockRetry<T>(store: Store, work: (repos: Repositories) => Promise<T>): Promise<T> {
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await store.transaction(work)
+    } catch (error) {
+      if (attempt >= 5 || !isRetryable(error)) throw error
+      await new Promise((r) => setTimeout(r, 10 * attempt + Math.random() * 40))
+    }
+  }
+}
+
+export async function enqueueJob(store: Store, job: NewJob, mode: EnqueueMode): Promise<{ job: JobRow; created: boolean }> {
+  const result = await withDeadlockRetry(store, (repos) => repos.jobs.enqueue(job, mode))
+  if (result.created) for (const wake of wakeups) wake()
+  return result
+}
+
+export interface ForecastRequest {
+  fieldId: number
+  farmId: number
+  reason: JobReason
+  /** recompute even when the stored forecast has the same inputs version */
+  force?: boolean
+  createdBy?: number | null
+}
+
+/**
+ * Queues a recompute of a field's forecast. `supersede` (changes, manual requests): a
+ * queued job of the field is marked superseded by the new one. `reuse-pending` (nightly,
+ * start-up sweep): a queued job of the field already covers it.
+ */
+export function enqueueForecast(store: Store, req: ForecastRequest, mode: 'supersede' | 'reuse-pending' = 'supersede') {
+  return enqueueJob(
+    store,
+    {
+      kind: 'forecast',
+      fieldId: req.fieldId,
+      farmId: req.farmId,
+      dedupeKey: forecastKey(req.fieldId),
+      payload: { reason: req.reason, force: req.force ?? false },
+      createdBy: req.createdBy ?? null,
+    },
+    mode,
+  )
+}

@@ -1,0 +1,136 @@
+// The forecast jobs of one server process: the engine thread pool, the runner, the
+// triggers, the start-up staleness sweep and the nightly refresh timer.
+//
+//   const jobs = await startJobs({ store, config, logger })   // server/index.ts
+//   ...
+//   await jobs.stop()                                           // on SIGTERM
+import { forecastWindow, FORECAST_WINDOW_HOURS } from '../../shared/schemas/forecast.ts'
+import type { Config } from '../config.ts'
+import type { Store } from '../db/repositories/index.ts'
+import type { Logger } from '../logger.ts'
+import { enqueueForecast, enqueueJob } from './enqueue.ts'
+import { EnginePool } from './enginePool.ts'
+import { defaultHandlers, engineSettings } from './handlers.ts'
+import { inputsVersion } from './inputs.ts'
+import { loadOrbitInputs } from './orbitInputs.ts'
+import { JobRunner, type JobHandler } from './runner.ts'
+import { registerForecastTriggers } from './triggers.ts'
+
+export interface JobsHandle {
+  runner: JobRunner | null
+  pool: EnginePool | null
+  /** Fields queued by the start-up sweep. */
+  sweep: { checked: number; queued: number }
+  stop(): Promise<void>
+}
+
+/**
+ * Fields whose stored forecast is missing, incomplete, from another window or from other
+ * inputs (a different version), queued for a recompute (a queued job already covers a field).
+ */
+export async function stalenessSweep(store: Store, config: Config, nowMs = Date.now()): Promise<{ checked: number; queued: number }> {
+  const settings = engineSettings(config)
+  const window = forecastWindow(nowMs, FORECAST_WINDOW_HOURS)
+  const fields = await store.repos.forecasts.allFieldsWithSigma()
+  if (fields.length === 0) return { checked: 0, queued: 0 }
+  const [obstructions, workTypes, orbits, meta] = await Promise.all([
+    store.repos.forecasts.obstructionsOfFarms([...new Set(fields.map((f) => f.farmId))]),
+    store.repos.forecasts.activeWorkTypes(),
+    loadOrbitInputs(store),
+    store.repos.forecasts.storedMeta(),
+  ])
+  let queued = 0
+  for (const field of fields) {
+    const version = inputsVersion({
+      field,
+      obstructions: obstructions.filter((o) => o.farmId === field.farmId),
+      orbitVersion: orbits.version,
+      outages: orbits.outages,
+      workTypes,
+      windowStartMs: window.startMs,
+      windowHours: window.hours,
+      settings,
+    })
+    const m = meta.get(field.id)
+    const current =
+      m !== undefined &&
+      m.hours === window.hours &&
+      m.firstHour?.getTime() === window.startMs &&
+      m.minVersion === version &&
+      m.maxVersion === version
+    if (current) continue
+    const { created } = await enqueueForecast(store, { fieldId: field.id, farmId: field.farmId, reason: 'start-up' }, 'reuse-pending')
+    if (created) queued++
+  }
+  return { checked: fields.length, queued }
+}
+
+/** Milliseconds from `now` to the next server-local `HH:MM`. */
+export function msUntilLocalTime(hhmm: string, now = new Date()): number {
+  const [h, m] = hhmm.split(':').map(Number)
+  const next = new Date(now)
+  next.setHours(h, m, 0, 0)
+  if (next.getTime() <= now.getTime()) next.setDate(next.getDate() + 1)
+  return next.getTime() - now.getTime()
+}
+
+/** The local date (YYYY-MM-DD) a nightly refresh belongs to: its dedupe key. */
+export function nightlyKey(now = new Date()): string {
+  const y = now.getFullYear()
+  const mo = String(now.getMonth() + 1).padStart(2, '0')
+  const d = String(now.getDate()).padStart(2, '0')
+  return `nightly:${y}-${mo}-${d}`
+}
+
+/** Queues today's nightly refresh once, whichever process asks first. */
+export function enqueueNightly(store: Store, now = new Date()) {
+  return enqueueJob(store, { kind: 'nightly-refresh', dedupeKey: nightlyKey(now), payload: { reason: 'nightly' } }, 'once')
+}
+
+export async function startJobs(deps: {
+  store: Store
+  config: Config
+  logger: Logger
+  handlers?: Record<string, JobHandler>
+  /** Skip the start-up sweep (tests that want an empty queue). */
+  sweep?: boolean
+}): Promise<JobsHandle> {
+  const { store, config, logger } = deps
+  const offTriggers = registerForecastTriggers(store, logger)
+  if (!config.jobsEnabled) {
+    logger.info('jobs are disabled in this process (JOBS_ENABLED=false); changes are queued for another process')
+    return { runner: null, pool: null, sweep: { checked: 0, queued: 0 }, stop: async () => offTriggers() }
+  }
+  const pool = new EnginePool(config.jobConcurrency)
+  const runner = new JobRunner({ store, config, logger, pool, handlers: defaultHandlers(deps.handlers) })
+  await runner.start()
+  let sweep = { checked: 0, queued: 0 }
+  if (deps.sweep !== false) {
+    try {
+      sweep = await stalenessSweep(store, config)
+      if (sweep.queued) logger.info(`start-up check: ${sweep.queued} of ${sweep.checked} field forecasts queued for a recompute`)
+    } catch (error) {
+      logger.warn('the start-up forecast check failed', error)
+    }
+  }
+  let nightlyTimer: NodeJS.Timeout | undefined
+  const scheduleNightly = () => {
+    nightlyTimer = setTimeout(() => {
+      void enqueueNightly(store).catch((error) => logger.warn('could not queue the nightly refresh', error))
+      scheduleNightly()
+    }, msUntilLocalTime(config.nightlyRefreshTime) + 1_000)
+    nightlyTimer.unref()
+  }
+  scheduleNightly()
+  return {
+    runner,
+    pool,
+    sweep,
+    stop: async () => {
+      clearTimeout(nightlyTimer)
+      offTriggers()
+      await runner.stop()
+      await pool.close()
+    },
+  }
+}

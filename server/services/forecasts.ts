@@ -1,0 +1,135 @@
+// Stored field forecasts for the outlook: one field's hours, or every field of a farm
+// (the day view). Clients read only their own farms (404 otherwise).
+import type { SessionUser } from '../../shared/schemas/auth.ts'
+import {
+  forecastWindow,
+  FORECAST_WINDOW_HOURS,
+  type FarmForecastResponse,
+  type FieldForecastResponse,
+  type ForecastHour,
+  type ForecastQuery,
+  type WorkTypeHour,
+} from '../../shared/schemas/forecast.ts'
+import { canSeeFarm } from '../auth/access.ts'
+import type { StoredForecastMeta } from '../db/repositories/forecasts.ts'
+import type { ForecastHourRow, JobRow } from '../db/schema-planning.ts'
+import { notFound } from '../http/errors.ts'
+import type { ServiceContext } from './context.ts'
+
+const HOUR_MS = 3_600_000
+
+export function toForecastHour(row: ForecastHourRow): ForecastHour {
+  let workTypes: Record<string, WorkTypeHour> = {}
+  try {
+    workTypes = JSON.parse(row.workJson) as Record<string, WorkTypeHour>
+  } catch {
+    workTypes = {}
+  }
+  return {
+    time: row.hourStart.toISOString(),
+    satsMin: row.satsMin,
+    satsMedian: row.satsMedian,
+    hdopMedian: row.hdopMedian,
+    hdopMax: row.hdopMax,
+    vdopMedian: row.vdopMedian,
+    vdopMax: row.vdopMax,
+    pdopMax: row.pdopMax,
+    n1HdopMax: row.n1HdopMax,
+    h95MedianM: row.h95MedianM,
+    h95MaxM: row.h95MaxM,
+    v95MedianM: row.v95MedianM,
+    v95MaxM: row.v95MaxM,
+    noFixShare: row.noFixShare,
+    workTypes,
+  }
+}
+
+/** Whether stored hours may not match the current inputs (see FieldForecastResponse.stale). */
+export function isStale(meta: StoredForecastMeta | undefined, pending: JobRow | undefined, nowMs: number): boolean {
+  if (pending) return true
+  if (!meta || !meta.firstHour) return true
+  const window = forecastWindow(nowMs, FORECAST_WINDOW_HOURS)
+  return meta.hours !== window.hours || meta.firstHour.getTime() !== window.startMs || meta.minVersion !== meta.maxVersion
+}
+
+export function createForecastsService(ctx: ServiceContext) {
+  const { store } = ctx
+
+  async function workTypeNames(hours: ForecastHour[]): Promise<Array<{ id: number; name: string }>> {
+    const used = new Set<string>()
+    for (const h of hours) for (const id of Object.keys(h.workTypes)) used.add(id)
+    const all = await store.repos.workTypes.list()
+    return all.filter((w) => used.has(String(w.id)) || (used.size === 0 && w.active)).map((w) => ({ id: w.id, name: w.name }))
+  }
+
+  function range(query: ForecastQuery, meta: StoredForecastMeta | undefined, nowMs: number): { from: Date; to: Date } {
+    const window = forecastWindow(nowMs)
+    const from = query.from ?? meta?.firstHour ?? new Date(window.startMs)
+    const to = query.to ?? (meta?.lastHour ? new Date(meta.lastHour.getTime() + HOUR_MS) : new Date(window.endMs))
+    return { from, to }
+  }
+
+  function assemble(
+    field: { id: number; name: string; farmId: number },
+    meta: StoredForecastMeta | undefined,
+    pending: JobRow | undefined,
+    hours: ForecastHour[],
+    nowMs: number,
+  ): Omit<FieldForecastResponse, 'workTypes'> {
+    return {
+      fieldId: field.id,
+      fieldName: field.name,
+      farmId: field.farmId,
+      inputsVersion: meta?.maxVersion ?? '',
+      computedAt: meta?.computedAt?.toISOString() ?? null,
+      windowStart: meta?.firstHour?.toISOString() ?? null,
+      windowEnd: meta?.lastHour ? new Date(meta.lastHour.getTime() + HOUR_MS).toISOString() : null,
+      stale: isStale(meta, pending, nowMs),
+      pendingJob: pending ? { id: pending.id, status: pending.status as 'queued' | 'running', progress: pending.progress } : null,
+      orbitSummary: meta?.orbitSummary ?? '',
+      hours,
+    }
+  }
+
+  return {
+    async field(user: SessionUser, fieldId: number, query: ForecastQuery): Promise<FieldForecastResponse> {
+      const field = (await store.repos.forecasts.fieldBasics([fieldId])).get(fieldId)
+      if (!field || !canSeeFarm(user, field.farmId)) throw notFound('The field')
+      const nowMs = Date.now()
+      const [metaMap, pendingMap] = await Promise.all([
+        store.repos.forecasts.storedMeta([fieldId]),
+        store.repos.jobs.pendingForFields([fieldId]),
+      ])
+      const meta = metaMap.get(fieldId)
+      const { from, to } = range(query, meta, nowMs)
+      const hours = (await store.repos.forecasts.hours([fieldId], from, to)).map(toForecastHour)
+      return { ...assemble(field, meta, pendingMap.get(fieldId), hours, nowMs), workTypes: await workTypeNames(hours) }
+    },
+
+    async farm(user: SessionUser, farmId: number, query: ForecastQuery): Promise<FarmForecastResponse> {
+      if (!canSeeFarm(user, farmId) || !(await store.repos.farms.findById(farmId))) throw notFound('The farm')
+      const nowMs = Date.now()
+      const fields = await store.repos.forecasts.fieldsOfFarm(farmId)
+      const ids = fields.map((f) => f.id)
+      const [metaMap, pendingMap] = await Promise.all([
+        store.repos.forecasts.storedMeta(ids),
+        store.repos.jobs.pendingForFields(ids),
+      ])
+      const window = forecastWindow(nowMs)
+      const from = query.from ?? new Date(window.startMs)
+      const to = query.to ?? new Date(window.endMs)
+      const rows = await store.repos.forecasts.hours(ids, from, to)
+      const byField = new Map<number, ForecastHour[]>(ids.map((id) => [id, []]))
+      for (const row of rows) byField.get(row.fieldId)?.push(toForecastHour(row))
+      const all = [...byField.values()].flat()
+      return {
+        farmId,
+        from: from.toISOString(),
+        to: to.toISOString(),
+        fields: fields.map((f) => assemble(f, metaMap.get(f.id), pendingMap.get(f.id), byField.get(f.id) ?? [], nowMs)),
+        workTypes: await workTypeNames(all),
+      }
+    },
+  }
+}
+export type ForecastsService = ReturnType<typeof createForecastsService>

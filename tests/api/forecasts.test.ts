@@ -1,0 +1,164 @@
+// Stored forecasts through the API with the real job runner (worker threads) on the test
+// database: a recompute stores exactly the window's hours with a state per work type, a
+// tree line's new height queues and stores a new version, clients read only their farms,
+// and bad ranges are refused naming the parameter.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { forecastWindow, type FarmForecastResponse, type FieldForecastResponse } from '../../shared/schemas/forecast.ts'
+import type { Job } from '../../shared/schemas/jobs.ts'
+import { createStore } from '../../server/db/repositories/index.ts'
+import { clearListeners } from '../../server/events.ts'
+import { startJobs, type JobsHandle } from '../../server/jobs/index.ts'
+import { createLogger } from '../../server/logger.ts'
+import { ensureForecastFields } from '../support/forecastFields.ts'
+import { demo, signIn, startTestServer, type Client, type TestServer } from '../support/server.ts'
+
+let server: TestServer
+let jobs: JobsHandle
+const as: Record<'admin' | 'office' | 'contractor' | 'clientNorth' | 'clientSouth', Client> = {} as never
+/** A field on the farm of the north client (not on the south client's farms). */
+let northField: { id: number; farmId: number }
+let southField: { id: number; farmId: number }
+
+async function until<T>(probe: () => Promise<T | null | undefined | false>, what: string, timeoutMs = 20_000): Promise<T> {
+  const end = Date.now() + timeoutMs
+  for (;;) {
+    const value = await probe()
+    if (value) return value
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`)
+    await new Promise((r) => setTimeout(r, 50))
+  }
+}
+
+beforeAll(async () => {
+  server = await startTestServer()
+  await ensureForecastFields(server.database.db, 1)
+  const store = createStore(server.database.db)
+  // Coarser engine settings keep the test short; the code path is the production one.
+  jobs = await startJobs({
+    store,
+    config: { ...server.config, forecastStepMin: 15, forecastSampleCount: 16, jobConcurrency: 2 },
+    logger: createLogger('error'),
+    sweep: false,
+  })
+  for (const key of ['admin', 'office', 'contractor', 'clientNorth', 'clientSouth'] as const) as[key] = await signIn(server.app, demo[key])
+  const northFarm = (await as.clientNorth.get('/api/farms')).body.items[0].id as number
+  const southFarms = ((await as.clientSouth.get('/api/farms')).body.items as { id: number }[]).map((f) => f.id)
+  const all = await server.repos.fields.listAll()
+  const n = all.find((f) => f.farmId === northFarm)!
+  const s = all.find((f) => southFarms.includes(f.farmId))!
+  northField = { id: n.id, farmId: n.farmId }
+  southField = { id: s.id, farmId: s.farmId }
+})
+
+afterAll(async () => {
+  await jobs?.stop()
+  clearListeners()
+  await server?.close()
+})
+
+describe('recompute and read a field forecast', () => {
+  it('queues a job (202), runs it on a worker thread and stores exactly the window', async () => {
+    const res = await as.contractor.post(`/api/fields/${northField.id}/recompute`)
+    expect(res.status).toBe(202)
+    const job = res.body as Job
+    expect(job).toMatchObject({ kind: 'forecast', status: 'queued', fieldId: northField.id, reason: 'manual', progress: 0 })
+    await jobs.runner!.idle()
+    const done = (await as.office.get(`/api/jobs?fieldId=${northField.id}&limit=5`)).body.items.find((j: Job) => j.id === job.id) as Job
+    expect(done.status).toBe('done')
+    expect(done.progress).toBe(1)
+    expect(done.result).toMatch(/^168 hours stored/)
+
+    const fc = (await as.clientNorth.get(`/api/fields/${northField.id}/forecast`)).body as FieldForecastResponse
+    const window = forecastWindow(Date.now())
+    expect(fc.hours).toHaveLength(168)
+    expect(fc.windowStart).toBe(new Date(window.startMs).toISOString())
+    expect(fc.windowEnd).toBe(new Date(window.endMs).toISOString())
+    expect(fc.hours[0].time).toBe(fc.windowStart)
+    expect(new Set(fc.hours.map((h) => h.time)).size).toBe(168)
+    expect(fc.stale).toBe(false)
+    expect(fc.pendingJob).toBeNull()
+    expect(fc.inputsVersion).toMatch(/^[0-9a-f]{64}$/)
+    expect(fc.orbitSummary).toMatch(/GPS/)
+    expect(fc.workTypes.map((w) => w.name)).toEqual(['Planting', 'Strip-till', 'Spraying', 'Tile drainage', 'Land levelling'])
+    for (const h of fc.hours) {
+      expect(Object.keys(h.workTypes).sort()).toEqual(fc.workTypes.map((w) => String(w.id)).sort())
+      for (const w of Object.values(h.workTypes)) {
+        expect(['clear', 'tight', 'closed']).toContain(w.state)
+        expect(w.share).toBeGreaterThanOrEqual(0)
+        expect(w.shareN1).toBeLessThanOrEqual(w.share + 1e-9)
+      }
+      if (h.hdopMax !== null) expect(h.hdopMax).toBeGreaterThanOrEqual(h.hdopMedian ?? 0)
+      expect(h.satsMin).toBeGreaterThanOrEqual(0)
+    }
+    // 95 % horizontal error ~ 2 sigma HDOP with the RTK sigma of the field.
+    const h = fc.hours.find((x) => x.hdopMedian !== null)!
+    expect(h.h95MedianM!).toBeCloseTo(2 * 0.012 * h.hdopMedian!, 4)
+  })
+
+  it('answers a range inside the window, and refuses bad ranges naming the parameter', async () => {
+    const window = forecastWindow(Date.now())
+    const from = new Date(window.startMs + 24 * 3_600_000).toISOString()
+    const to = new Date(window.startMs + 30 * 3_600_000).toISOString()
+    const part = (await as.admin.get(`/api/fields/${northField.id}/forecast?from=${from}&to=${to}`)).body as FieldForecastResponse
+    expect(part.hours.map((x) => x.time)).toHaveLength(6)
+    expect(part.hours[0].time).toBe(from)
+    const bad = await as.admin.get(`/api/fields/${northField.id}/forecast?from=yesterday`)
+    expect(bad.status).toBe(400)
+    expect(bad.body.error.fields.from).toMatch(/ISO 8601/)
+    const backwards = await as.admin.get(`/api/fields/${northField.id}/forecast?from=${to}&to=${from}`)
+    expect(backwards.status).toBe(400)
+    expect(backwards.body.error.fields.to).toMatch(/before/)
+  })
+
+  it('lets clients read only the fields of their farms', async () => {
+    expect((await as.clientSouth.get(`/api/fields/${northField.id}/forecast`)).status).toBe(404)
+    expect((await as.clientSouth.get(`/api/farms/${northField.farmId}/forecast`)).status).toBe(404)
+    expect((await as.clientNorth.get(`/api/fields/${southField.id}/forecast`)).status).toBe(404)
+    expect((await as.admin.get('/api/fields/99999999/forecast')).status).toBe(404)
+    expect((await as.clientNorth.post(`/api/fields/${northField.id}/recompute`)).status).toBe(403)
+    expect((await as.contractor.post('/api/fields/99999999/recompute')).status).toBe(404)
+  })
+
+  it('gives a farm day view of all its fields', async () => {
+    const window = forecastWindow(Date.now())
+    const from = new Date(window.startMs).toISOString()
+    const to = new Date(window.startMs + 24 * 3_600_000).toISOString()
+    const res = await as.clientNorth.get(`/api/farms/${northField.farmId}/forecast?from=${from}&to=${to}`)
+    expect(res.status).toBe(200)
+    const farm = res.body as FarmForecastResponse
+    expect(farm.from).toBe(from)
+    const mine = farm.fields.find((f) => f.fieldId === northField.id)!
+    expect(mine.hours).toHaveLength(24)
+    expect(farm.workTypes).toHaveLength(5)
+  })
+})
+
+describe('changes queue recomputes', () => {
+  it('a taller tree line queues the fields of the farm, which then store a new version', async () => {
+    const before = (await as.admin.get(`/api/fields/${northField.id}/forecast`)).body as FieldForecastResponse
+    const treeLine = (await server.repos.obstructions.listByFarm(northField.farmId))[0]
+    const patched = await as.contractor.patch(`/api/obstructions/${treeLine.id}`, { heightM: treeLine.heightM + 6 })
+    expect(patched.status).toBe(200)
+    // The event listener enqueues after the change committed.
+    const job = await until(async () => {
+      const list = (await as.office.get(`/api/jobs?fieldId=${northField.id}&limit=5`)).body.items as Job[]
+      return list.find((j) => j.reason === 'obstructions')
+    }, 'the recompute after the tree line change')
+    expect(['queued', 'running', 'done']).toContain(job.status)
+    await jobs.runner!.idle()
+    const after = (await as.admin.get(`/api/fields/${northField.id}/forecast`)).body as FieldForecastResponse
+    expect(after.hours).toHaveLength(168)
+    expect(after.inputsVersion).not.toBe(before.inputsVersion)
+    expect(after.stale).toBe(false)
+  })
+
+  it('a recompute that finds the same inputs stores nothing new unless asked by hand', async () => {
+    const { enqueueForecast } = await import('../../server/jobs/enqueue.ts')
+    const store = createStore(server.database.db)
+    const { job } = await enqueueForecast(store, { fieldId: northField.id, farmId: northField.farmId, reason: 'nightly' })
+    await jobs.runner!.idle()
+    const row = await server.repos.jobs.findById(job.id)
+    expect(row?.status).toBe('done')
+    expect(JSON.parse(row!.resultJson!).summary).toMatch(/up to date/)
+  })
+})
