@@ -21,6 +21,8 @@ import { fieldRoutes } from './routes/fields.ts'
 import { importRoutes } from './routes/imports.ts'
 import { obstructionRoutes } from './routes/obstructions.ts'
 import { orbitRoutes } from './routes/orbits.ts'
+import { passRoutes } from './routes/passes.ts'
+import { windowRoutes } from './routes/windows.ts'
 import { outageRoutes } from './routes/outages.ts'
 import { forecastRoutes } from './routes/forecasts.ts'
 import { jobRoutes } from './routes/jobs.ts'
@@ -66,6 +68,8 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
 
   const app = express() as SkyfurrowApp
   app.locals.services = services
+  // Re-check booked passes whenever a field's forecast is replaced.
+  services.atRisk.listen()
   app.set('query parser', 'simple')
   app.use(
     helmet({
@@ -125,6 +129,8 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
   api.use('/machines', machineRoutes(services))
   api.use('/jobs', jobRoutes(services))
   api.use(forecastRoutes(services))
+  api.use(passRoutes(services))
+  api.use(windowRoutes(services))
   api.use(apiNotFound)
   app.use('/api', api)
 

@@ -8,6 +8,10 @@ import { createOrbitsService } from './orbits.ts'
 import { createOutagesService } from './outages.ts'
 import { createMailboxService } from './mailbox.ts'
 import { createForecastsService } from './forecasts.ts'
+import { createAtRiskService } from './atRisk.ts'
+import { createExportsService } from './exports.ts'
+import { createPassesService } from './passes.ts'
+import { createWindowsService } from './windows.ts'
 import { createJobsService } from './jobs.ts'
 import { createMachinesService } from './machines.ts'
 import { createServiceLevelsService } from './serviceLevels.ts'
@@ -32,6 +36,10 @@ export function createServices(ctx: ServiceContext) {
     machines: createMachinesService(ctx),
     jobs: createJobsService(ctx),
     forecasts: createForecastsService(ctx),
+    passes: createPassesService(ctx),
+    windows: createWindowsService(ctx),
+    atRisk: createAtRiskService(ctx),
+    exports: createExportsService(ctx),
   }
 }
 export type Services = ReturnType<typeof createServices>

@@ -219,6 +219,12 @@ const matrix: Record<string, Row> = {
   ...adminManaged('/api/service-levels'),
   ...adminManaged('/api/work-types'),
   ...adminManaged('/api/machines'),
+  // Stored forecasts and jobs (tests/api/forecasts, jobs).
+  'GET /api/fields/:id/forecast': { call: async (f) => ({ params: { id: await throwawayField(f) } }), expect: { ...signedIn(200), otherClient: 404 } },
+  'GET /api/farms/:id/forecast': { call: (f) => ({ params: { id: f.farmId } }), expect: { ...signedIn(200), otherClient: 404 } },
+  'POST /api/fields/:id/recompute': { call: async (f) => ({ params: { id: await throwawayField(f) } }), expect: only(['admin', 'office', 'contractor'], 202) },
+  'GET /api/jobs': { expect: only(['admin', 'office'], 200) },
+  'GET /api/jobs/summary': { expect: signedIn(200) },
 }
 
 // ---- running it ---------------------------------------------------------------------

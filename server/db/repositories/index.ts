@@ -9,6 +9,7 @@ import { orbitsRepository } from './orbits.ts'
 import { outagesRepository } from './outages.ts'
 import { mailboxRepository } from './mailbox.ts'
 import { forecastsRepository } from './forecasts.ts'
+import { passesRepository } from './passes.ts'
 import { jobsRepository } from './jobs.ts'
 import { machinesRepository } from './machines.ts'
 import { serviceLevelsRepository } from './serviceLevels.ts'
@@ -30,6 +31,7 @@ export function createRepositories(db: DbOrTx) {
     machines: machinesRepository(db),
     jobs: jobsRepository(db),
     forecasts: forecastsRepository(db),
+    passes: passesRepository(db),
     fields: fieldsRepository(db),
     obstructions: obstructionsRepository(db),
     orbits: orbitsRepository(db),
