@@ -78,7 +78,15 @@ export function startFakeSmtp(options: {
     },
   })
   return new Promise((resolve, reject) => {
-    const onError = (error: Error) => reject(error)
+    const onError = (error: Error & { code?: string }) =>
+      reject(
+        error.code === 'EADDRINUSE'
+          ? new Error(
+              `Port ${options.port} of the local mailbox (FAKE_SMTP_PORT) is already in use. ` +
+                'Stop the other Skyfurrow server, or set FAKE_SMTP_PORT to another port (0 picks a free one).',
+            )
+          : error,
+      )
     server.once('error', onError)
     server.listen(options.port, host, () => {
       server.off('error', onError)

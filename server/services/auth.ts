@@ -41,6 +41,17 @@ export function createAuthService(ctx: ServiceContext) {
     await mailer.send(resetMail({ to: user.email, name: user.name, link, expiresInMinutes: RESET_LINK_MINUTES }))
   }
 
+  // Expired sessions and stale link tokens are removed at most once an hour, after a sign-in.
+  let lastCleanup = 0
+  function cleanUpNowAndThen(): void {
+    const now = Date.now()
+    if (now - lastCleanup < 3_600_000) return
+    lastCleanup = now
+    Promise.all([lucia.deleteExpiredSessions(), store.repos.tokens.deleteStale(new Date(now))]).catch((error: unknown) =>
+      logger.warn('removing expired sessions and tokens failed', error),
+    )
+  }
+
   return {
     sessionUser,
 
@@ -56,6 +67,7 @@ export function createAuthService(ctx: ServiceContext) {
       }
       const session = await lucia.createSession(row.id, {})
       await store.repos.users.update(row.id, { lastSignInAt: new Date() })
+      cleanUpNowAndThen()
       return { user: await sessionUser(row.id), cookie: lucia.createSessionCookie(session.id).serialize() }
     },
 

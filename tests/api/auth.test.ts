@@ -3,7 +3,7 @@
 import { eq } from 'drizzle-orm'
 import request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { sessions, users } from '../../server/db/schema.ts'
+import { authTokens, sessions, users } from '../../server/db/schema.ts'
 import {
   Client,
   createUserWithPassword,
@@ -148,6 +148,24 @@ describe('sessions', () => {
     expect(row.expiresAt.getTime()).toBeGreaterThan(Date.now() + 13 * 86_400_000)
     // A fresh session is not renewed on every request.
     expect(sessionCookieOf(await client.get('/api/auth/me'))).toBeUndefined()
+  })
+
+  it('removes expired sessions and stale link tokens after a sign-in', async () => {
+    const user = await createUserWithPassword(server, { role: 'office' })
+    const past = new Date(Date.now() - 60_000)
+    await server.database.db.insert(sessions).values({ id: `expired${user.id}x`.padEnd(40, 'x'), userId: user.id, expiresAt: past })
+    await server.database.db
+      .insert(authTokens)
+      .values({ userId: user.id, purpose: 'reset', tokenHash: `${user.id}`.padStart(64, 'e'), expiresAt: past })
+    // A new app instance cleans up on its first sign-in (then at most once an hour).
+    await signIn(server.appWith({}), user.email, user.password)
+    const tokensOf = () => server.database.db.select().from(authTokens).where(eq(authTokens.userId, user.id))
+    for (let i = 0; i < 100; i++) {
+      if ((await server.repos.sessions.countOf(user.id)) === 1 && (await tokensOf()).length === 0) break
+      await new Promise((r) => setTimeout(r, 20))
+    }
+    expect(await server.repos.sessions.countOf(user.id)).toBe(1)
+    expect(await tokensOf()).toEqual([])
   })
 
   it('signs out: the session ends and the cookie is cleared', async () => {

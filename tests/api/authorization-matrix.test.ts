@@ -46,6 +46,8 @@ interface Fixtures {
 
 interface Call {
   params?: Record<string, string | number>
+  /** query string without the '?' */
+  query?: string
   body?: unknown
 }
 
@@ -123,6 +125,22 @@ async function throwawayOutage(f: Fixtures): Promise<number> {
   return f.server.repos.outages.insert({ satId: 'GB2', fromAt: new Date('2030-02-01T00:00:00Z'), toAt: new Date('2030-02-02T00:00:00Z'), note: '', createdBy: null })
 }
 const farmEditors = (status: number) => only(['admin', 'office', 'contractor'], status)
+
+// Passes, windows, hour detail, calendar feeds (tests/api/passes, windows, at-risk, calendar).
+async function sprayingId(f: Fixtures): Promise<number> {
+  const wt = await f.server.repos.workTypes.findByName('Spraying')
+  if (!wt) throw new Error('the matrix needs the demo work type Spraying')
+  return wt.id
+}
+/** A planned pass far in the future on a throwaway field of the client's farm, without a machine. */
+async function throwawayPass(f: Fixtures): Promise<number> {
+  return f.server.repos.passes.insert({
+    fieldId: await throwawayField(f), workTypeId: await sprayingId(f), machineId: null,
+    startAt: new Date(Date.UTC(2031, 5, 2, 14)), durationMin: 60, status: 'planned',
+    atRisk: false, atRiskReason: null, suggestedStartAt: null, notes: '', createdBy: null,
+  })
+}
+const weekQuery = (f: Fixtures) => `farmId=${f.farmId}&from=2031-06-01T00:00:00Z&to=2031-06-08T00:00:00Z`
 const orbitStaff = (status: number) => only(['admin', 'office'], status)
 
 // ---- the table ----------------------------------------------------------------------
@@ -204,6 +222,24 @@ const matrix: Record<string, Row> = {
   'GET /api/orbits/active': { expect: orbitStaff(200) },
   'PUT /api/orbits/active': { call: () => ({ body: [{ system: 'GPS', orbitSetId: null, enabled: true }] }), expect: orbitStaff(200) },
   'GET /api/orbit-data': { expect: signedIn(200) },
+  'GET /api/passes': { expect: signedIn(200) },
+  'GET /api/passes.csv': { call: (f) => ({ query: weekQuery(f) }), expect: { ...signedIn(200), otherClient: 404 } },
+  'GET /api/passes/at-risk': { expect: signedIn(200) },
+  'GET /api/passes/:id': { call: async (f) => ({ params: { id: await throwawayPass(f) } }), expect: { ...signedIn(200), otherClient: 404 } },
+  'POST /api/passes': {
+    call: async (f) => ({ body: { fieldId: await throwawayField(f), workTypeId: await sprayingId(f), start: '2031-06-03T14:00:00Z' } }),
+    expect: farmEditors(201),
+  },
+  'PATCH /api/passes/:id': { call: async (f) => ({ params: { id: await throwawayPass(f) }, body: { notes: 'matrix' } }), expect: farmEditors(200) },
+  'POST /api/passes/:id/cancel': { call: async (f) => ({ params: { id: await throwawayPass(f) } }), expect: farmEditors(200) },
+  'POST /api/passes/:id/done': { call: async (f) => ({ params: { id: await throwawayPass(f) } }), expect: farmEditors(200) },
+  'GET /api/fields/:id/windows': {
+    call: async (f) => ({ params: { id: await throwawayField(f) }, query: `workTypeId=${await sprayingId(f)}&allowNight=1` }),
+    expect: farmEditors(200),
+  },
+  ...adminManaged('/api/service-levels'),
+  ...adminManaged('/api/work-types'),
+  ...adminManaged('/api/machines'),
   'POST /api/farms/:id/fields/import/preview': {
     call: (f) => ({ params: { id: f.farmId }, body: {} }),
     expect: { ...farmEditors(400) },
@@ -299,9 +335,10 @@ describe('authorization matrix', () => {
       const actual = {} as Expected
       const details: string[] = []
       for (const caller of callers) {
-        const { params, body } = (await row.call?.(fixtures, caller)) ?? {}
+        const { params, query, body } = (await row.call?.(fixtures, caller)) ?? {}
         const client = await clientFor(caller)
-        const res = await client.call(method.toLowerCase() as 'get', fillPath(path, params), body)
+        const url = fillPath(path, params) + (query ? `?${query}` : '')
+        const res = await client.call(method.toLowerCase() as 'get', url, body)
         actual[caller] = res.status
         if (res.status !== row.expect[caller]) details.push(`${caller}: ${res.status} ${JSON.stringify(res.body)}`)
         if (row.endsSession && caller !== 'anonymous') sessions.delete(caller)

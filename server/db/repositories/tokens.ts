@@ -1,5 +1,5 @@
 // One-time tokens for reset and invitation links (stored as SHA-256 hashes).
-import { and, eq, isNull } from 'drizzle-orm'
+import { and, eq, isNotNull, isNull, lte, or } from 'drizzle-orm'
 import type { DbOrTx } from '../index.ts'
 import { authTokens, type AuthTokenRow } from '../schema.ts'
 
@@ -17,6 +17,13 @@ export function tokensRepository(db: DbOrTx) {
     },
     async markUsed(id: number, at: Date): Promise<void> {
       await db.update(authTokens).set({ usedAt: at }).where(eq(authTokens.id, id))
+    },
+    /** Removes tokens that can no longer be used (expired, or used more than a day ago). */
+    async deleteStale(now: Date): Promise<void> {
+      const dayAgo = new Date(now.getTime() - 86_400_000)
+      await db
+        .delete(authTokens)
+        .where(or(lte(authTokens.expiresAt, now), and(isNotNull(authTokens.usedAt), lte(authTokens.usedAt, dayAgo))))
     },
     /** Ends every unused token of the user (all purposes, or one). */
     async revokeUnused(userId: number, purpose?: TokenPurpose): Promise<void> {
