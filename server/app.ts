@@ -24,6 +24,7 @@ import { orbitRoutes } from './routes/orbits.ts'
 import { passRoutes } from './routes/passes.ts'
 import { windowRoutes } from './routes/windows.ts'
 import { outageRoutes } from './routes/outages.ts'
+import { orbitFeedRoutes } from './routes/orbitFeed.ts'
 import { forecastRoutes } from './routes/forecasts.ts'
 import { jobRoutes } from './routes/jobs.ts'
 import { machineRoutes } from './routes/machines.ts'
@@ -124,6 +125,7 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
   api.use(orbitRoutes(services))
   api.use(importRoutes(services))
   api.use('/outages', outageRoutes(services))
+  api.use('/orbit-feed', orbitFeedRoutes(services))
   api.use('/service-levels', serviceLevelRoutes(services))
   api.use('/work-types', workTypeRoutes(services))
   api.use('/machines', machineRoutes(services))

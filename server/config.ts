@@ -42,6 +42,7 @@ const envSchema = z.object({
   FAKE_SMTP_PORT: port(2525),
   MAIL_FROM: optionalString,
   LOG_LEVEL: optionalString.pipe(z.enum(logLevels).optional()),
+  ORBIT_FEED_URL: optionalString.pipe(z.url('ORBIT_FEED_URL must be an http(s) address').optional()),
   JOB_CONCURRENCY: intIn(1, 16, 2),
   JOBS_ENABLED: optionalString.pipe(z.enum(['true', 'false', '1', '0']).optional()),
   FORECAST_STEP_MIN: intIn(1, 60, 5),
@@ -69,6 +70,8 @@ export interface Config {
   fakeSmtpPort: number
   mailFrom: string
   logLevel: LogLevel
+  /** Orbit feed address (OMM JSON, TLE or OMM XML); empty: the app's own local fake feed. */
+  orbitFeedUrl: string
   /** Forecast jobs that run at once in this process (each on its own worker thread). */
   jobConcurrency: number
   /** False: this process serves the API only and runs no jobs (another process does). */
@@ -107,6 +110,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     fakeSmtpPort: e.FAKE_SMTP_PORT,
     mailFrom: e.MAIL_FROM ?? 'Skyfurrow <plans@skyfurrow.test>',
     logLevel: e.LOG_LEVEL ?? (e.NODE_ENV === 'test' ? 'warn' : 'info'),
+    orbitFeedUrl: e.ORBIT_FEED_URL ?? '',
     jobConcurrency: e.JOB_CONCURRENCY,
     jobsEnabled: e.JOBS_ENABLED === undefined || e.JOBS_ENABLED === 'true' || e.JOBS_ENABLED === '1',
     forecastStepMin: e.FORECAST_STEP_MIN,

@@ -6,6 +6,7 @@ import { createImportsService } from './imports.ts'
 import { createObstructionsService } from './obstructions.ts'
 import { createOrbitsService } from './orbits.ts'
 import { createOutagesService } from './outages.ts'
+import { createOrbitFeedService } from './orbitFeed.ts'
 import { createMailboxService } from './mailbox.ts'
 import { createForecastsService } from './forecasts.ts'
 import { createAtRiskService } from './atRisk.ts'
@@ -31,6 +32,7 @@ export function createServices(ctx: ServiceContext) {
     orbits: createOrbitsService(ctx),
     imports: createImportsService(ctx),
     outages: createOutagesService(ctx),
+    orbitFeed: createOrbitFeedService(ctx),
     serviceLevels: createServiceLevelsService(ctx),
     workTypes: createWorkTypesService(ctx),
     machines: createMachinesService(ctx),

@@ -222,6 +222,10 @@ const matrix: Record<string, Row> = {
   'GET /api/orbits/active': { expect: orbitStaff(200) },
   'PUT /api/orbits/active': { call: () => ({ body: [{ system: 'GPS', orbitSetId: null, enabled: true }] }), expect: orbitStaff(200) },
   'GET /api/orbit-data': { expect: signedIn(200) },
+  'GET /api/orbit-feed/nominal.json': { expect: everyone(200) },
+  // The test configuration's feed address does not resolve: staff get the feed failure (502).
+  'POST /api/orbit-feed/run': { expect: orbitStaff(502) },
+  'GET /api/orbit-feed/status': { expect: orbitStaff(200) },
   'GET /api/passes': { expect: signedIn(200) },
   'GET /api/passes.csv': { call: (f) => ({ query: weekQuery(f) }), expect: { ...signedIn(200), otherClient: 404 } },
   'GET /api/passes/at-risk': { expect: signedIn(200) },
