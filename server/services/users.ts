@@ -118,12 +118,15 @@ export function createUsersService(ctx: ServiceContext) {
 
     async update(id: number, patch: UserPatch): Promise<User> {
       await store.transaction(async (repos) => {
+        // A change that may take away an admin locks the active admins first, before reading.
+        const mayRemoveAdmin = (patch.role !== undefined && patch.role !== 'admin') || patch.active === false
+        const activeAdmins = mayRemoveAdmin ? await repos.users.lockActiveAdmins() : []
         const row = await repos.users.findById(id)
         if (!row) throw notFound('The user')
         const role = patch.role ?? row.role
         const active = patch.active ?? row.active
         const losesAdmin = row.role === 'admin' && row.active && (role !== 'admin' || !active)
-        if (losesAdmin && (await repos.users.lockOtherActiveAdmins(id)).length === 0) {
+        if (losesAdmin && activeAdmins.filter((adminId) => adminId !== id).length === 0) {
           throw conflict(LAST_ADMIN_MESSAGE, patch.role && patch.role !== 'admin' ? { role: LAST_ADMIN_MESSAGE } : { active: LAST_ADMIN_MESSAGE })
         }
         if (patch.farmIds !== undefined || role !== row.role) {

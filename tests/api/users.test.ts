@@ -173,4 +173,25 @@ describe('the last active admin', () => {
     expect((await admin.patch(`/api/users/${adminId}`, { role: 'contractor' })).status).toBe(409)
     expect((await admin.get('/api/auth/me')).body.role).toBe('admin')
   })
+
+  it('two admins demoting each other at the same moment leave one admin, not none', async () => {
+    // For this test the demo admin steps aside, so that exactly two admins are active.
+    for (const id of await otherActiveAdmins()) await server.repos.users.update(id, { role: 'office' })
+    const a = await createUserWithPassword(server, { role: 'admin' })
+    const b = await createUserWithPassword(server, { role: 'admin' })
+    await server.repos.users.update(adminId, { active: false })
+    try {
+      const asA = await signIn(server.app, a.email, a.password)
+      const asB = await signIn(server.app, b.email, b.password)
+      const results = await Promise.all([
+        asA.patch(`/api/users/${b.id}`, { role: 'office' }),
+        asB.patch(`/api/users/${a.id}`, { active: false }),
+      ])
+      expect(results.map((r) => r.status).sort()).toEqual([200, 409])
+      const left = (await server.database.db.select().from(users).where(eq(users.role, 'admin'))).filter((u) => u.active)
+      expect(left).toHaveLength(1)
+    } finally {
+      await server.repos.users.update(adminId, { active: true })
+    }
+  })
 })

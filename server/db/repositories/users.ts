@@ -1,5 +1,5 @@
 // Queries on users and their farm links.
-import { and, asc, count, desc, eq, inArray, ne, or, type SQL } from 'drizzle-orm'
+import { and, asc, count, desc, eq, inArray, or, type SQL } from 'drizzle-orm'
 import type { Role, UnitSystem } from '../../../shared/schemas/common.ts'
 import type { UserSortKey } from '../../../shared/schemas/users.ts'
 import type { DbOrTx } from '../index.ts'
@@ -111,14 +111,16 @@ export function usersRepository(db: DbOrTx) {
     },
 
     /**
-     * Ids of the active admins other than `exceptId`, locking those rows until the
-     * transaction ends so two concurrent changes cannot both remove "the other" admin.
+     * Ids of all active admins, locking those rows until the transaction ends. Every caller
+     * locks them in the same order (by id), so two concurrent changes wait for each other
+     * instead of both removing "the other" admin (or deadlocking).
      */
-    async lockOtherActiveAdmins(exceptId: number): Promise<number[]> {
+    async lockActiveAdmins(): Promise<number[]> {
       const rows = await db
         .select({ id: users.id })
         .from(users)
-        .where(and(eq(users.role, 'admin'), eq(users.active, true), ne(users.id, exceptId)))
+        .where(and(eq(users.role, 'admin'), eq(users.active, true)))
+        .orderBy(asc(users.id))
         .for('update')
       return rows.map((r) => r.id)
     },
