@@ -148,6 +148,8 @@ export class JobRunner {
     clearInterval(this.pollTimer)
     clearInterval(this.recoverTimer)
     this.unwake?.()
+    // A claim in flight finishes first, so the release below covers the job it took.
+    while (this.pumping) await new Promise((r) => setTimeout(r, 5))
     for (const c of this.controllers.values()) c.abort(new Error('The server is shutting down.'))
     this.queue.clear()
     await this.store.repos.jobs.release(this.id).catch((error) => this.deps.logger.warn('could not release running jobs', error))

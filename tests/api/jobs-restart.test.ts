@@ -1,0 +1,184 @@
+// Restart safety with a real server process: recomputes of several fields are queued
+// through the API, the server is killed with SIGKILL while they run, and a new server
+// process finishes every job. Afterwards each field has exactly the window's hours (no
+// duplicates, no partial set, one inputs version) and no job is left running.
+import { spawn, type ChildProcess } from 'node:child_process'
+import { join } from 'node:path'
+import { and, inArray } from 'drizzle-orm'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { forecastWindow } from '../../shared/schemas/forecast.ts'
+import type { Job } from '../../shared/schemas/jobs.ts'
+import { openDatabase, type DatabaseHandle } from '../../server/db/index.ts'
+import { runMigrations } from '../../server/db/migrate.ts'
+import { createRepositories } from '../../server/db/repositories/index.ts'
+import { jobs } from '../../server/db/schema-planning.ts'
+import { seedDemo } from '../../seed/index.ts'
+import { freePort, root } from '../e2e/support.ts'
+import { ensureForecastFields } from '../support/forecastFields.ts'
+import { demo, DEMO_PASSWORD } from '../support/server.ts'
+
+let db: DatabaseHandle
+let fieldIds: number[] = []
+let current: ChildProcess | undefined
+let output = ''
+
+interface Server {
+  child: ChildProcess
+  baseUrl: string
+  exited: Promise<number | null>
+}
+
+async function startServer(port: number): Promise<Server> {
+  const child = spawn(join(root, 'node_modules', '.bin', 'tsx'), ['server/index.ts'], {
+    cwd: root,
+    env: {
+      ...process.env,
+      NODE_ENV: 'test',
+      PORT: String(port),
+      HOST: '127.0.0.1',
+      FAKE_SMTP_PORT: '0',
+      SMTP_URL: '',
+      PUBLIC_URL: '',
+      LOG_LEVEL: 'info',
+      JOB_CONCURRENCY: '2',
+      FORECAST_STEP_MIN: '5',
+      FORECAST_SAMPLES: '64',
+    },
+    stdio: ['ignore', 'pipe', 'pipe'],
+    // Its own process group, so that tsx's node child is killed with it.
+    detached: true,
+  })
+  current = child
+  child.stdout?.on('data', (c: Buffer) => (output += c.toString()))
+  child.stderr?.on('data', (c: Buffer) => (output += c.toString()))
+  const exited = new Promise<number | null>((done) => child.once('exit', (code) => done(code)))
+  const baseUrl = `http://127.0.0.1:${port}`
+  const deadline = Date.now() + 90_000
+  for (;;) {
+    if (child.exitCode !== null) throw new Error(`The server exited with ${child.exitCode}:\n${output}`)
+    try {
+      if ((await fetch(`${baseUrl}/api/health`)).ok) break
+    } catch {
+      // not listening yet
+    }
+    if (Date.now() > deadline) throw new Error(`The server did not start:\n${output}`)
+    await new Promise((r) => setTimeout(r, 200))
+  }
+  return { child, baseUrl, exited }
+}
+
+/** SIGKILL to the whole process group (tsx and the node process it runs). */
+async function killHard(server: Server): Promise<void> {
+  process.kill(-server.child.pid!, 'SIGKILL')
+  await server.exited
+}
+
+async function stopCleanly(server: Server): Promise<void> {
+  process.kill(-server.child.pid!, 'SIGTERM')
+  const timer = setTimeout(() => process.kill(-server.child.pid!, 'SIGKILL'), 15_000)
+  await server.exited
+  clearTimeout(timer)
+}
+
+async function until<T>(probe: () => Promise<T | null | undefined | false>, what: string, timeoutMs = 120_000): Promise<T> {
+  const end = Date.now() + timeoutMs
+  for (;;) {
+    const v = await probe()
+    if (v) return v
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}\n${output.slice(-3000)}`)
+    await new Promise((r) => setTimeout(r, 50))
+  }
+}
+
+beforeAll(async () => {
+  if (!process.env.DATABASE_URL) throw new Error('This test needs DATABASE_URL (a migrated test database).')
+  db = openDatabase(process.env.DATABASE_URL, { connectionLimit: 3 })
+  await runMigrations(db.db)
+  await seedDemo(db.db)
+  fieldIds = (await ensureForecastFields(db.db, 2)).slice(0, 8)
+})
+
+afterAll(async () => {
+  if (current && current.exitCode === null && current.pid) {
+    try {
+      process.kill(-current.pid, 'SIGKILL')
+    } catch {
+      // already gone
+    }
+  }
+  await db?.close()
+})
+
+describe('restart safety', () => {
+  it('kill -9 in the middle of recomputes, start again: every job completes, every field has exactly its window', { timeout: 400_000 }, async () => {
+    const repos = createRepositories(db.db)
+    const port = await freePort()
+    const first = await startServer(port)
+    // Sign in and queue a recompute of each field through the API, as a user would.
+    const signIn = await fetch(`${first.baseUrl}/api/auth/sign-in`, {
+      method: 'POST',
+      headers: { 'Content-Type': 'application/json', Origin: first.baseUrl },
+      body: JSON.stringify({ email: demo.office, password: DEMO_PASSWORD }),
+    })
+    expect(signIn.status).toBe(200)
+    const cookie = signIn.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ')
+    const queued: Job[] = []
+    for (const id of fieldIds) {
+      const res = await fetch(`${first.baseUrl}/api/fields/${id}/recompute`, {
+        method: 'POST',
+        headers: { 'Content-Type': 'application/json', Origin: first.baseUrl, Cookie: cookie },
+        body: '{}',
+      })
+      expect(res.status).toBe(202)
+      queued.push((await res.json()) as Job)
+    }
+    const ids = queued.map((j) => j.id)
+    const ours = () => db.db.select().from(jobs).where(inArray(jobs.id, ids))
+
+    // Wait until the first server is in the middle: jobs running with progress, some not done.
+    await until(async () => {
+      const rows = await ours()
+      const running = rows.filter((r) => r.status === 'running' && r.progress > 0.05)
+      const done = rows.filter((r) => r.status === 'done')
+      return running.length > 0 && done.length < rows.length - 2
+    }, 'jobs running on the first server')
+    await killHard(first)
+    const leftRunning = (await ours()).filter((r) => r.status === 'running')
+    expect(leftRunning.length).toBeGreaterThan(0)
+
+    // A new process on the same database.
+    const second = await startServer(await freePort())
+    await until(async () => {
+      const rows = await ours()
+      return rows.every((r) => r.status === 'done' || r.status === 'failed' || r.status === 'superseded') && rows
+    }, 'every job to finish on the second server')
+    const rows = await ours()
+    expect(rows.map((r) => [r.id, r.status, r.error])).toEqual(rows.map((r) => [r.id, 'done', null]))
+    // The jobs the dead process held were run again by the new one.
+    for (const left of leftRunning) {
+      const row = rows.find((r) => r.id === left.id)!
+      expect(row.lockedBy).toBeNull()
+      expect(row.attempts).toBeGreaterThanOrEqual(2)
+    }
+    expect(await db.db.select().from(jobs).where(and(inArray(jobs.id, ids), inArray(jobs.status, ['running', 'queued'])))).toEqual([])
+
+    // Exactly the window's hours per field, consecutive, one inputs version, from the last job.
+    const window = forecastWindow(Date.now())
+    const meta = await repos.forecasts.storedMeta(fieldIds)
+    for (const id of fieldIds) {
+      const m = meta.get(id)!
+      expect(m.hours, `hours of field ${id}`).toBe(window.hours)
+      expect(m.firstHour?.getTime()).toBe(window.startMs)
+      expect(m.lastHour?.getTime()).toBe(window.endMs - 3_600_000)
+      expect(m.minVersion).toBe(m.maxVersion)
+      const hours = await repos.forecasts.hours([id], new Date(window.startMs), new Date(window.endMs))
+      expect(hours).toHaveLength(window.hours)
+      expect(new Set(hours.map((h) => h.hourStart.getTime())).size).toBe(window.hours)
+      // Every hour of the field came from one job, the field's job of this test.
+      const job = queued.find((j) => j.fieldId === id)!
+      expect(new Set(hours.map((h) => h.jobId))).toEqual(new Set([job.id]))
+    }
+    expect(output).toMatch(/queued again/)
+    await stopCleanly(second)
+  })
+})
