@@ -1,4 +1,4 @@
-import { reactive } from 'vue'
+import { reactive, watch } from 'vue'
 import type { z } from 'zod'
 import { ApiError } from '@/api/http'
 
@@ -18,9 +18,22 @@ export function issuesToFields(issues: readonly { path: readonly PropertyKey[]; 
  * Field messages for a form, from two sources that use the same words: the shared zod
  * schema checked before sending, and the server's `fields` when it refuses the request.
  * Bind `errors.x` to each `a-form-item`'s `help` and `status(x)` to its `validate-status`.
+ * Pass the form's reactive model to clear a field's message when that field changes.
  */
-export function useFormErrors() {
+export function useFormErrors(model?: Record<string, unknown>) {
   const errors = reactive<FieldErrors>({})
+
+  // A field's message goes away as soon as the user changes that field.
+  if (model) {
+    watch(
+      () => ({ ...model }),
+      (now, before) => {
+        for (const key of Object.keys(now)) {
+          if (now[key] !== before[key]) delete errors[key]
+        }
+      },
+    )
+  }
 
   function clear(): void {
     for (const key of Object.keys(errors)) delete errors[key]
