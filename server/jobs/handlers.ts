@@ -6,7 +6,8 @@ import type { HourAggregate } from '../../shared/precision/index.ts'
 import type { NewForecastHour } from '../db/repositories/forecasts.ts'
 import type { Store } from '../db/repositories/index.ts'
 import { emit } from '../events.ts'
-import { enqueueForecast, withDeadlockRetry } from './enqueue.ts'
+import { feedUrlOf, fetchOrbitFeed } from '../services/orbitFeed.ts'
+import { enqueueForecast, enqueueJob, withDeadlockRetry } from './enqueue.ts'
 import { engineTask, inputsVersion, type EngineSettings } from './inputs.ts'
 import { loadOrbitInputs } from './orbitInputs.ts'
 import type { JobContext, JobHandler, JobOutcome } from './runner.ts'
@@ -129,10 +130,28 @@ export const forecastHandler: JobHandler = async (ctx: JobContext): Promise<JobO
   }
 }
 
-/** Queues a forecast of every field (a queued one already covers its field) and prunes old rows. */
+/**
+ * Fetches the configured orbit feed (the app's local fake feed by default) into a new orbit
+ * set; the orbit data service then emits 'orbits.changed', which queues every field. One
+ * fetch attempt per run: the runner retries with its own backoff and keeps the error.
+ */
+export const orbitFeedHandler: JobHandler = async (ctx) => {
+  const result = await fetchOrbitFeed(ctx.store, feedUrlOf(ctx.config), { retries: 0, createdBy: ctx.job.createdBy })
+  if (!result.ok) throw new Error(result.message)
+  return { summary: result.message, data: { ...result } }
+}
+
+/** The date (UTC) a daily job belongs to, for its dedupe key. */
+const dayOf = (ms: number) => new Date(ms).toISOString().slice(0, 10)
+
+/**
+ * Fetches the orbit feed (a job of its own), queues a forecast of every field (a queued
+ * one already covers its field) and prunes hours older than the window and old job rows.
+ */
 export const nightlyRefreshHandler: JobHandler = async (ctx) => {
   const { store } = ctx
   const window = forecastWindow(Date.now())
+  await enqueueJob(store, { kind: 'orbit-feed', dedupeKey: `orbit-feed:${dayOf(Date.now())}`, payload: { reason: 'nightly' }, maxAttempts: 4 }, 'once')
   const pruned = await store.repos.forecasts.pruneBefore(new Date(window.startMs))
   const prunedJobs = await store.repos.jobs.pruneFinished(new Date(Date.now() - 14 * 86_400_000))
   const fieldList = await store.repos.forecasts.fieldIds()
@@ -149,5 +168,5 @@ export const nightlyRefreshHandler: JobHandler = async (ctx) => {
 }
 
 export function defaultHandlers(extra: Record<string, JobHandler> = {}): Record<string, JobHandler> {
-  return { forecast: forecastHandler, 'nightly-refresh': nightlyRefreshHandler, ...extra }
+  return { forecast: forecastHandler, 'nightly-refresh': nightlyRefreshHandler, 'orbit-feed': orbitFeedHandler, ...extra }
 }

@@ -54,9 +54,13 @@ export interface RunnerOptions {
 /** Runner ids alive in this process (a second runner in the same process is not "gone"). */
 const liveIds = new Set<string>()
 
+/** Runner ids look like host:pid:token. */
+const isRunnerId = (lockedBy: string | null) => lockedBy !== null && lockedBy.split(':').length >= 3
+
 /** Whether the process that holds `lockedBy` is certainly gone (same host only; else heartbeats decide). */
 export function lockHolderGone(lockedBy: string | null, pidAlive: (pid: number) => boolean = isPidAlive): boolean {
   if (!lockedBy) return true
+  if (!isRunnerId(lockedBy)) return false
   const parts = lockedBy.split(':')
   if (parts.length < 3) return false
   const [host, pidText] = parts
@@ -209,7 +213,10 @@ export class JobRunner {
       if (j.lockedBy === this.id) return false
       if (j.lockedBy && liveIds.has(j.lockedBy)) return false
       if (lockHolderGone(j.lockedBy)) return true
-      return !j.heartbeatAt || now - j.heartbeatAt.getTime() > this.opts.staleAfterMs
+      // Rows written by other code (e.g. a feed run started from the Orbits page) carry no
+      // runner id and no heartbeat: they get a much longer grace period.
+      const limit = isRunnerId(j.lockedBy) ? this.opts.staleAfterMs : 20 * this.opts.staleAfterMs
+      return !j.heartbeatAt || now - j.heartbeatAt.getTime() > limit
     })
     if (abandoned.length === 0) return { requeued: 0, failed: 0 }
     const result = await this.store.repos.jobs.requeueAbandoned(abandoned)

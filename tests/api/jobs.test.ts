@@ -2,12 +2,14 @@
 // the queued one, the list and summary show status and progress, a failing job is retried
 // with backoff and then stays failed with its error, and a clean stop puts running jobs
 // back in the queue.
+import type { AddressInfo } from 'node:net'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { FieldForecastResponse } from '../../shared/schemas/forecast.ts'
 import type { Job, JobList, JobSummary } from '../../shared/schemas/jobs.ts'
 import { createStore, type Store } from '../../server/db/repositories/index.ts'
 import { EnginePool } from '../../server/jobs/enginePool.ts'
 import { enqueueJob } from '../../server/jobs/enqueue.ts'
+import { orbitFeedHandler } from '../../server/jobs/handlers.ts'
 import { JobRunner, type JobHandler } from '../../server/jobs/runner.ts'
 import { createLogger } from '../../server/logger.ts'
 import { ensureForecastFields } from '../support/forecastFields.ts'
@@ -166,5 +168,26 @@ describe('the runner', () => {
     await r2.stop()
     const final = await server.repos.jobs.findById(job.id)
     expect(final?.status, JSON.stringify({ ...final, r2: r2.id })).toBe('done')
+  })
+
+  it('fetches the orbit feed (the local fake feed of this app) in an orbit-feed job', async () => {
+    const http = server.app.listen(0, '127.0.0.1')
+    await new Promise((res) => http.once('listening', res))
+    const publicUrl = `http://127.0.0.1:${(http.address() as AddressInfo).port}`
+    try {
+      const r = runner({ 'orbit-feed': orbitFeedHandler }, { config: { ...server.config, publicUrl, orbitFeedUrl: '', jobConcurrency: 1 } })
+      const { job } = await enqueueJob(store, { kind: 'orbit-feed', payload: { reason: 'test' } }, 'supersede')
+      await r.start()
+      await r.idle()
+      await r.stop()
+      const row = await server.repos.jobs.findById(job.id)
+      expect(row?.status, row?.error ?? '').toBe('done')
+      const result = JSON.parse(row!.resultJson!) as { ok: boolean; satelliteCount: number; summary: string }
+      expect(result.ok).toBe(true)
+      expect(result.satelliteCount).toBeGreaterThan(90)
+      expect(result.summary).toMatch(/^Fetched \d+ satellites/)
+    } finally {
+      await new Promise((res) => http.close(res))
+    }
   })
 })
