@@ -145,8 +145,13 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
       },
     }),
   )
-  // Every other GET is a client-side route: answer with the client's index.html.
-  app.get('/{*splat}', (_req, res) => {
+  // Every other GET is a client-side route: answer with the client's index.html. A missing
+  // file (a path ending in an extension, e.g. an old /assets/*.js) is a plain 404 instead.
+  app.get('/{*splat}', (req, res) => {
+    if (/\.[A-Za-z0-9]+$/.test(req.path)) {
+      res.status(404).type('text').send('Not found')
+      return
+    }
     const index = join(distDir, 'index.html')
     if (!existsSync(index)) {
       res.status(503).type('html').send(missingBuildPage)

@@ -128,7 +128,10 @@ describe('the web client', () => {
     const page = await request(built).get('/admin/farms')
     expect(page.status).toBe(200)
     expect(page.text).toContain('<title>client</title>')
-    // API paths never fall back to the client.
+    // API paths and missing files never fall back to the client.
     expect((await request(built).get('/api/unknown')).status).toBe(404)
+    expect((await request(built).get('/assets/index-gone.js')).status).toBe(404)
+    writeFileSync(join(dist, 'robots.txt'), 'User-agent: *')
+    expect((await request(built).get('/robots.txt')).text).toBe('User-agent: *')
   })
 })
