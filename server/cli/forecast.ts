@@ -217,7 +217,13 @@ async function main(argv: string[]): Promise<void> {
   const obstructions = values.obstructions !== undefined ? (readJson('obstructions', values.obstructions as string) as FeatureCollection) : null
   if (obstructions && obstructions.type !== 'FeatureCollection') throw new UsageError(`--obstructions ${String(values.obstructions)}: expected a GeoJSON FeatureCollection`)
   const satellites = loadOrbits(orbits, fileSystem)
-  const propagation = await createSgp4Options(satellites, (values.propagator as string | undefined) ?? 'auto')
+  const epochCount = Math.floor((hours * 60) / stepMin) + 1
+  let propagation
+  try {
+    propagation = await createSgp4Options(satellites, (values.propagator as string | undefined) ?? 'auto', epochCount)
+  } catch (e) {
+    throw new UsageError((e as Error).message)
+  }
 
   try {
     if (!field) {

@@ -68,11 +68,12 @@ function engineRuns(label: string, sats: Satellite[], propagation?: PropagationO
     ['hourly aggregation', ms(st('aggregationMs'))],
     ['total (wall)', ms(wall)],
     ['total (CPU time of this process)', ms(cpu)],
+    ['best run, wall / CPU', `${ms(Math.min(...runs.map((r) => r.wallMs)))} / ${ms(Math.min(...runs.map((r) => r.cpuMs)))}`],
     ['first (cold) run, wall / CPU', `${ms(warm.wallMs)} / ${ms(warm.cpuMs)}`],
     ['satellite-point evaluations/s', perS(r0.evaluations, wall)],
     ['sample-point evaluations/s', perS(pointEpochs, wall)],
   ])
-  return { wall, cpu, coldWall: warm.wallMs, result: r0 }
+  return { wall, cpu, coldWall: warm.wallMs, bestWall: Math.min(...runs.map((r) => r.wallMs)), result: r0 }
 }
 
 async function main() {
@@ -89,12 +90,12 @@ async function main() {
   const timeIt = (f: () => void) => {
     f()
     const t: number[] = []
-    for (let i = 0; i < 3; i++) {
+    for (let i = 0; i < 5; i++) {
       const t0 = performance.now()
       f()
       t.push(performance.now() - t0)
     }
-    return median(t)
+    return Math.min(...t)
   }
   const satrecs = ommSats.map((s) => json2satrec((s.orbit as { omm: Parameters<typeof json2satrec>[0] }).omm))
   const tPropagate = timeIt(() => {
@@ -114,7 +115,7 @@ async function main() {
   let maxDiff = 0
   for (let i = 0; i < a.length; i++) maxDiff = Math.max(maxDiff, Math.abs(a[i] - b[i]))
   const faster = tBulk < tLoop ? 'bulk WASM propagator' : 'JavaScript sgp4 loop'
-  table(`SGP4 propagation of ${ommSats.length} satellites x ${nEp} epochs (median of 3)`, [
+  table(`SGP4 propagation of ${ommSats.length} satellites x ${nEp} epochs (best of 5)`, [
     ['satellite.js propagate(date) + eciToEcf', ms(tPropagate)],
     ['engine sgp4 loop (satellitePositions)', ms(tLoop)],
     ['BulkPropagator (WASM, single thread)', ms(tBulk)],
@@ -159,6 +160,7 @@ async function main() {
       ['yardstick / engine, same SGP4 inputs, CPU', `${(yCpu / sgp.cpu).toFixed(1)} x`],
       ['yardstick / engine (embedded nominal), wall', `${(yWall / kepler.wall).toFixed(1)} x`],
       ['engine week, embedded nominal, median wall / CPU', `${kepler.wall.toFixed(0)} ms / ${kepler.cpu.toFixed(0)} ms`],
+      ['engine week, embedded nominal, best run wall', `${kepler.bestWall.toFixed(0)} ms`],
       ['engine week, embedded nominal, cold run wall', `${kepler.coldWall.toFixed(0)} ms`],
     ])
   }

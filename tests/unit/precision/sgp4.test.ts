@@ -91,3 +91,21 @@ describe('TEME -> earth-fixed', () => {
     for (let i = 0; i < 3; i++) expect(Math.abs(r[i] - published[i])).toBeLessThan(1e-3)
   })
 })
+
+describe('the two SGP4 propagators', () => {
+  it('the bulk WASM propagator and the JavaScript loop give the same positions (1 mm)', async () => {
+    // Both are satellite.js implementations of the same SGP4 (AIAA 2006-6753); the
+    // engine may use either, so they must agree.
+    const { createSingleThreadRuntime } = await import('satellite.js')
+    const { readFileSync } = await import('node:fs')
+    const text = readFileSync(new URL('../../fixtures/precision/orbits/gps-sample.tle', import.meta.url), 'utf8')
+    const sats = parseOrbitFile(text).satellites
+    const epochs = Array.from({ length: 50 }, (_, i) => Date.UTC(2026, 11, 2) + i * 1_800_000)
+    const js = satellitePositions(sats, epochs)
+    const bulk = satellitePositions(sats, epochs, { bulkRuntime: await createSingleThreadRuntime() })
+    let max = 0
+    for (let i = 0; i < js.length; i++) max = Math.max(max, Math.abs(js[i] - bulk[i]))
+    expect(js.length).toBe(24 * 50 * 3)
+    expect(max).toBeLessThan(1e-3)
+  })
+})
