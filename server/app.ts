@@ -23,6 +23,8 @@ import { obstructionRoutes } from './routes/obstructions.ts'
 import { orbitRoutes } from './routes/orbits.ts'
 import { passRoutes } from './routes/passes.ts'
 import { windowRoutes } from './routes/windows.ts'
+import { hourDetailRoutes } from './routes/hourDetail.ts'
+import { calendarRoutes } from './routes/calendar.ts'
 import { outageRoutes } from './routes/outages.ts'
 import { orbitFeedRoutes } from './routes/orbitFeed.ts'
 import { forecastRoutes } from './routes/forecasts.ts'
@@ -133,6 +135,8 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
   api.use(forecastRoutes(services))
   api.use(passRoutes(services))
   api.use(windowRoutes(services))
+  api.use(hourDetailRoutes(services))
+  api.use(calendarRoutes(services))
   api.use(apiNotFound)
   app.use('/api', api)
 

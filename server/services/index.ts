@@ -13,6 +13,8 @@ import { createAtRiskService } from './atRisk.ts'
 import { createExportsService } from './exports.ts'
 import { createPassesService } from './passes.ts'
 import { createWindowsService } from './windows.ts'
+import { createHourDetailService } from './hourDetail.ts'
+import { createCalendarService } from './calendar.ts'
 import { createJobsService } from './jobs.ts'
 import { createMachinesService } from './machines.ts'
 import { createServiceLevelsService } from './serviceLevels.ts'
@@ -40,6 +42,8 @@ export function createServices(ctx: ServiceContext) {
     forecasts: createForecastsService(ctx),
     passes: createPassesService(ctx),
     windows: createWindowsService(ctx),
+    hourDetail: createHourDetailService(ctx),
+    calendar: createCalendarService(ctx),
     atRisk: createAtRiskService(ctx),
     exports: createExportsService(ctx),
   }

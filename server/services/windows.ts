@@ -16,7 +16,7 @@ import type { SessionUser } from '../../shared/schemas/auth.ts'
 import type { WindowQuery, WindowSearchResult } from '../../shared/schemas/passes.ts'
 import { assertFarmVisible } from '../auth/access.ts'
 import type { Repositories } from '../db/repositories/index.ts'
-import type { FieldRow, MachineRow, WorkTypeRow } from '../db/schema-planning.ts'
+import type { FieldRow, ForecastHourRow, MachineRow, WorkTypeRow } from '../db/schema-planning.ts'
 import { badRequest, notFound } from '../http/errors.ts'
 import type { ServiceContext } from './context.ts'
 
@@ -34,6 +34,11 @@ export async function planningHours(
   toMs: number,
 ): Promise<PlanningHour[]> {
   const rows = await repos.forecasts.hours([fieldId], new Date(fromMs), new Date(toMs))
+  return hourStates(rows, workTypeId)
+}
+
+/** The state of each stored row for one work type (rows of any fields: filter first). */
+export function hourStates(rows: ReadonlyArray<Pick<ForecastHourRow, 'hourStart' | 'workJson'>>, workTypeId: number): PlanningHour[] {
   const key = String(workTypeId)
   const out: PlanningHour[] = []
   for (const row of rows) {

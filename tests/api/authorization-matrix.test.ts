@@ -6,6 +6,7 @@
 // parameters and the body (and may create throwaway data, e.g. something to delete);
 // `expect` gives the status for each caller. Mutating calls by allowed callers should
 // really succeed (2xx) where that is cheap, so the row proves more than "not 403".
+import { createHash, randomBytes } from 'node:crypto'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import {
   Client,
@@ -140,6 +141,18 @@ async function throwawayPass(f: Fixtures): Promise<number> {
     atRisk: false, atRiskReason: null, suggestedStartAt: null, notes: '', createdBy: null,
   })
 }
+/** A calendar link of the client's farm, made by an admin; its plain token. */
+async function calendarToken(f: Fixtures): Promise<string> {
+  const token = randomBytes(32).toString('base64url')
+  await f.server.repos.calendarTokens.insert({ farmId: f.farmId, tokenHash: createHash('sha256').update(token).digest('hex'), label: 'matrix', includeWindows: false, createdBy: null })
+  return token
+}
+/** The id of a fresh link of the client's farm made by `caller` (the client's own for both clients). */
+async function calendarTokenId(f: Fixtures, caller: Caller): Promise<number> {
+  const maker = caller === 'admin' || caller === 'office' || caller === 'otherClient' ? caller : 'client'
+  const user = await f.server.repos.users.findByEmail(accounts[maker === 'otherClient' ? 'client' : maker])
+  return f.server.repos.calendarTokens.insert({ farmId: f.farmId, tokenHash: createHash('sha256').update(randomBytes(32)).digest('hex'), label: 'matrix', includeWindows: false, createdBy: user!.id })
+}
 const weekQuery = (f: Fixtures) => `farmId=${f.farmId}&from=2031-06-01T00:00:00Z&to=2031-06-08T00:00:00Z`
 const orbitStaff = (status: number) => only(['admin', 'office'], status)
 
@@ -237,6 +250,24 @@ const matrix: Record<string, Row> = {
   'PATCH /api/passes/:id': { call: async (f) => ({ params: { id: await throwawayPass(f) }, body: { notes: 'matrix' } }), expect: farmEditors(200) },
   'POST /api/passes/:id/cancel': { call: async (f) => ({ params: { id: await throwawayPass(f) } }), expect: farmEditors(200) },
   'POST /api/passes/:id/done': { call: async (f) => ({ params: { id: await throwawayPass(f) } }), expect: farmEditors(200) },
+  'GET /api/fields/:id/hour-detail': {
+    call: async (f) => ({ params: { id: await throwawayField(f) }, query: `hour=${new Date(Math.floor(Date.now() / 3_600_000) * 3_600_000).toISOString()}` }),
+    expect: { ...signedIn(200), otherClient: 404 },
+  },
+  'GET /api/calendar/:token.ics': {
+    call: async (f) => ({ params: { token: await calendarToken(f) } }),
+    expect: everyone(200),
+  },
+  'GET /api/farms/:id/calendar-tokens': { call: (f) => ({ params: { id: f.farmId } }), expect: { ...only(['admin', 'office', 'client', 'otherClient'], 200), otherClient: 404 } },
+  'POST /api/farms/:id/calendar-tokens': {
+    call: (f) => ({ params: { id: f.farmId }, body: { label: 'matrix' } }),
+    expect: { ...only(['admin', 'office', 'client', 'otherClient'], 201), otherClient: 404 },
+  },
+  'DELETE /api/calendar-tokens/:id': {
+    // a fresh link per caller: made by the caller (admin, office) or by the farm's own client
+    call: async (f, caller) => ({ params: { id: await calendarTokenId(f, caller) } }),
+    expect: { ...only(['admin', 'office', 'client', 'otherClient'], 204), otherClient: 404 },
+  },
   'GET /api/fields/:id/windows': {
     call: async (f) => ({ params: { id: await throwawayField(f) }, query: `workTypeId=${await sprayingId(f)}&allowNight=1` }),
     expect: farmEditors(200),

@@ -10,6 +10,7 @@ import { outagesRepository } from './outages.ts'
 import { mailboxRepository } from './mailbox.ts'
 import { forecastsRepository } from './forecasts.ts'
 import { passesRepository } from './passes.ts'
+import { calendarTokensRepository } from './calendarTokens.ts'
 import { jobsRepository } from './jobs.ts'
 import { machinesRepository } from './machines.ts'
 import { serviceLevelsRepository } from './serviceLevels.ts'
@@ -32,6 +33,7 @@ export function createRepositories(db: DbOrTx) {
     jobs: jobsRepository(db),
     forecasts: forecastsRepository(db),
     passes: passesRepository(db),
+    calendarTokens: calendarTokensRepository(db),
     fields: fieldsRepository(db),
     obstructions: obstructionsRepository(db),
     orbits: orbitsRepository(db),

@@ -1,0 +1,155 @@
+// An hour's detail for a field: the figures the forecast job stored for that hour, plus,
+// computed now with the engine, the values at every sample point over the hour (for a map
+// of the field coloured by precision) and the sky view at the worst sample point.
+// The engine runs with the same inputs as the forecast jobs: the active orbit data and
+// outages (orbitData service), the farm's obstructions, the field's antenna height and
+// service level, the active work types, and the jobs' step, sample count and mask.
+import { forecastField, skyView } from '../../shared/precision/index.ts'
+import { HOUR_MS, floorHour } from '../../shared/planning/index.ts'
+import type { SessionUser } from '../../shared/schemas/auth.ts'
+import type { HourDetail, HourDetailPoint, HourWorkState, StoredHourFigures } from '../../shared/schemas/passes.ts'
+import { assertFarmVisible } from '../auth/access.ts'
+import type { ForecastHourRow } from '../db/schema-planning.ts'
+import { badRequest, notFound } from '../http/errors.ts'
+import { engineSettings } from '../jobs/handlers.ts'
+import { engineWorkTypes, obstructionCollection, outagesInWindow } from '../jobs/inputs.ts'
+import { loadOrbitInputs } from '../jobs/orbitInputs.ts'
+import type { ServiceContext } from './context.ts'
+
+/** How far from now an hour's detail may be asked for (the engine can compute any hour, but pages show the week). */
+const MAX_DISTANCE_MS = 60 * 24 * HOUR_MS
+
+function storedFigures(row: ForecastHourRow, names: Map<number, string>): StoredHourFigures {
+  let work: Record<string, { share: number; shareN1: number; state: HourWorkState['state'] }> = {}
+  try {
+    work = JSON.parse(row.workJson) as typeof work
+  } catch {
+    work = {}
+  }
+  return {
+    hourStart: row.hourStart.toISOString(),
+    satsMin: row.satsMin,
+    satsMedian: row.satsMedian,
+    hdopMedian: row.hdopMedian,
+    hdopMax: row.hdopMax,
+    vdopMedian: row.vdopMedian,
+    vdopMax: row.vdopMax,
+    pdopMax: row.pdopMax,
+    n1HdopMax: row.n1HdopMax,
+    h95MedianM: row.h95MedianM,
+    h95MaxM: row.h95MaxM,
+    v95MedianM: row.v95MedianM,
+    v95MaxM: row.v95MaxM,
+    noFixShare: row.noFixShare,
+    workTypes: Object.entries(work)
+      .filter(([id]) => names.has(Number(id)))
+      .map(([id, v]) => ({ workTypeId: Number(id), workTypeName: names.get(Number(id))!, share: v.share, shareN1: v.shareN1, state: v.state })),
+    orbitSummary: row.orbitSummary,
+    computedAt: row.computedAt.toISOString(),
+  }
+}
+
+/** Index of the worst sample point: no fix anywhere in the hour first, then the highest HDOP. */
+export function worstPointIndex(points: ReadonlyArray<{ hdopMax: number | null; noFixShare: number }>): number {
+  let worst = 0
+  const badness = (p: { hdopMax: number | null; noFixShare: number }) => (p.hdopMax === null ? Infinity : p.hdopMax) + p.noFixShare * 1e6
+  for (let i = 1; i < points.length; i++) if (badness(points[i]) > badness(points[worst])) worst = i
+  return worst
+}
+
+export function createHourDetailService(ctx: ServiceContext) {
+  const { store, config } = ctx
+
+  return {
+    async get(user: SessionUser, fieldId: number, hourIso: string, nowMs = Date.now()): Promise<HourDetail> {
+      const repos = store.repos
+      const field = await repos.forecasts.fieldWithSigma(fieldId)
+      if (!field) throw notFound('The field')
+      assertFarmVisible(user, field.farmId)
+      const hourStart = floorHour(Date.parse(hourIso))
+      if (Math.abs(hourStart - nowMs) > MAX_DISTANCE_MS) {
+        throw badRequest('Ask for an hour within 60 days of today.', { hour: 'Choose an hour within 60 days of today.' })
+      }
+      const farm = await repos.farms.findById(field.farmId)
+      const [obstructionRows, workTypeRows, orbits, storedRows] = await Promise.all([
+        repos.forecasts.obstructionsOfFarm(field.farmId),
+        repos.forecasts.activeWorkTypes(),
+        loadOrbitInputs(store),
+        repos.forecasts.hours([field.id], new Date(hourStart), new Date(hourStart + HOUR_MS)),
+      ])
+      const names = new Map(workTypeRows.map((w) => [w.id, w.name]))
+      const settings = engineSettings(config)
+      const obstructions = obstructionCollection(obstructionRows)
+      const outages = outagesInWindow(orbits.outages, hourStart - HOUR_MS, hourStart + 2 * HOUR_MS)
+      const common = {
+        satellites: orbits.satellites,
+        outages,
+        obstructions,
+        antennaHeightM: field.antennaHeightM,
+        maskDeg: settings.maskDeg,
+      }
+      const result = forecastField({
+        ...common,
+        field: JSON.parse(field.boundary),
+        startMs: hourStart,
+        hours: 1,
+        stepMin: settings.stepMin,
+        sampleCount: settings.sampleCount,
+        sigmaUereM: field.sigmaUereM,
+        workTypes: engineWorkTypes(workTypeRows),
+        detailHourMs: hourStart,
+      })
+      const detailPoints = result.detail?.points ?? []
+      const points: HourDetailPoint[] = detailPoints.map((p) => ({
+        latDeg: p.latDeg,
+        lonDeg: p.lonDeg,
+        weightM2: p.weightM2,
+        obstructionDistanceM: p.obstructionDistanceM,
+        satellitesMin: p.satellitesMin,
+        hdopMax: p.hdopMax,
+        vdopMax: p.vdopMax,
+        pdopMax: p.pdopMax,
+        n1HdopMax: p.n1HdopMax,
+        h95MaxM: p.h95MaxM,
+        v95MaxM: p.v95MaxM,
+        noFixShare: p.noFixShare,
+        horizonMaxDeg: p.horizonMaxDeg,
+        workTypes: p.workTypes.map((w) => ({ workTypeId: Number(w.id), share: w.share, shareN1: w.shareN1 })),
+      }))
+      if (points.length === 0) throw new Error(`the engine returned no sample points for field ${field.id}`)
+      const worst = worstPointIndex(points)
+      // The sky at the middle of the hour, with the satellites' tracks over the hour around it.
+      const sky = skyView({ ...common, point: { latDeg: points[worst].latDeg, lonDeg: points[worst].lonDeg }, atMs: hourStart + HOUR_MS / 2 })
+      return {
+        fieldId: field.id,
+        fieldName: field.name,
+        timeZone: farm?.timeZone ?? 'UTC',
+        hourStart: new Date(hourStart).toISOString(),
+        stored: storedRows[0] ? storedFigures(storedRows[0], names) : null,
+        computed: {
+          orbitSummary: orbits.summary,
+          sigmaUereM: field.sigmaUereM,
+          points,
+          worstPoint: { latDeg: points[worst].latDeg, lonDeg: points[worst].lonDeg, index: worst },
+          sky: {
+            atMs: sky.atMs,
+            maskDeg: sky.maskDeg,
+            horizonMaskDeg: sky.horizonMaskDeg,
+            satellites: sky.satellites.map((s) => ({
+              id: s.id,
+              system: s.system,
+              azimuthDeg: s.azimuthDeg,
+              elevationDeg: s.elevationDeg,
+              status: s.status,
+              track: s.track,
+            })),
+            used: sky.used,
+            dop: sky.dop ? { gdop: sky.dop.gdop, pdop: sky.dop.pdop, hdop: sky.dop.hdop, vdop: sky.dop.vdop, tdop: sky.dop.tdop } : null,
+            n1: sky.n1 ? { lostSatId: sky.n1.lostSatId, hdop: sky.n1.dop?.hdop ?? null } : null,
+          },
+        },
+      }
+    },
+  }
+}
+export type HourDetailService = ReturnType<typeof createHourDetailService>
