@@ -47,12 +47,10 @@ await new Promise<void>((resolve, reject) => {
 })
 config = withListeningPort(config, (server.address() as AddressInfo).port)
 server.on('request', createApp({ config, db: database.db, mailer, logger }))
-const shownHost = config.host.includes(':') ? `[${config.host}]` : config.host
-console.log(`Skyfurrow listening on http://${shownHost}:${config.port}`)
 
 // Forecast jobs: triggers on changes, the runner (worker threads), start-up recovery and sweep.
 setListenerErrorHandler((name, error) => logger.error(`listener of ${name} failed`, error))
-const jobs = await startJobs({ store: createStore(database.db), config, logger })
+const jobsStarting = startJobs({ store: createStore(database.db), config, logger })
 
 let stopping = false
 async function shutdown(signal: string): Promise<void> {
@@ -68,7 +66,9 @@ async function shutdown(signal: string): Promise<void> {
     server.close(() => resolve())
     server.closeIdleConnections()
   })
-  await jobs.stop()
+  // A signal during start-up waits for the jobs to have started, then stops them.
+  const jobs = await jobsStarting.catch(() => undefined)
+  await jobs?.stop()
   mailer.close()
   if (fakeSmtp) await fakeSmtp.close()
   await database.close()
@@ -78,3 +78,8 @@ async function shutdown(signal: string): Promise<void> {
 }
 process.on('SIGINT', () => void shutdown('SIGINT'))
 process.on('SIGTERM', () => void shutdown('SIGTERM'))
+
+// Ready: the signal handlers are in place and the jobs run. Scripts wait for this line.
+await jobsStarting
+const shownHost = config.host.includes(':') ? `[${config.host}]` : config.host
+console.log(`Skyfurrow listening on http://${shownHost}:${config.port}`)
