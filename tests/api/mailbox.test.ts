@@ -1,6 +1,9 @@
 // The Mailbox: what the local fake SMTP server received, for admin and office staff.
 import request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { createLogger } from '../../server/logger.ts'
+import { startFakeSmtp } from '../../server/mail/fake-smtp.ts'
+import { createMailer } from '../../server/mail/transport.ts'
 import { Client, demo, signIn, startTestServer, unique, waitForMail, type TestServer } from '../support/server.ts'
 
 let server: TestServer
@@ -85,5 +88,21 @@ describe('mailbox', () => {
     expect(res.status).toBe(404)
     expect(res.body.error.code).toBe('mailbox_off')
     expect((await request(app).get('/api/meta')).body.fakeMailbox).toBe(false)
+  })
+
+  it('sends through SMTP_URL when one is configured', async () => {
+    // Any SMTP server will do; here a second local one stands in for the real relay.
+    const relay = await startFakeSmtp({ port: 0, mailbox: server.repos.mailbox, logger: createLogger('error') })
+    const mailer = createMailer({ from: 'Skyfurrow <plans@skyfurrow.test>', smtpUrl: `smtp://127.0.0.1:${relay.port}` })
+    try {
+      expect(mailer.fake).toBe(false)
+      const to = `${unique('relay')}@example.test`
+      const since = new Date()
+      await mailer.send({ to, subject: 'Through the relay', text: 'hello', html: '<p>hello</p>' })
+      expect((await waitForMail(server.repos, to, since)).subject).toBe('Through the relay')
+    } finally {
+      mailer.close()
+      await relay.close()
+    }
   })
 })
