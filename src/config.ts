@@ -10,6 +10,13 @@ export const config = {
   defaultPageSize: 20,
   /** Time shown by ant-design-vue `message` toasts, in seconds. */
   messageDurationS: 5,
+  /**
+   * Optional imagery under the Fields map: an XYZ tile URL template with {z}/{x}/{y}
+   * (VITE_MAP_TILE_URL at build time). Empty: the map stays offline (plain background).
+   */
+  mapTileUrl: ((import.meta.env.VITE_MAP_TILE_URL as string | undefined) ?? '').trim(),
+  /** Attribution text shown with that imagery (VITE_MAP_TILE_ATTRIBUTION). */
+  mapTileAttribution: ((import.meta.env.VITE_MAP_TILE_ATTRIBUTION as string | undefined) ?? '').trim(),
 } as const
 
 /**

@@ -125,6 +125,8 @@ export const http = {
     request<T>('POST', path, { ...options, body: body ?? {} }),
   patch: <T>(path: string, body: unknown, options?: Omit<RequestOptions, 'body'>) =>
     request<T>('PATCH', path, { ...options, body }),
+  put: <T>(path: string, body: unknown, options?: Omit<RequestOptions, 'body'>) =>
+    request<T>('PUT', path, { ...options, body }),
   delete: <T = void>(path: string, options?: Omit<RequestOptions, 'body'>) =>
     request<T>('DELETE', path, options),
 }

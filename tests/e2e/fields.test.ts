@@ -1,0 +1,193 @@
+// A contractor draws a field and a tree line on the offline map, sees the field's area,
+// and opens the sky check beside the tree line: raising the tree line lifts the horizon
+// cut that the sky view shows. A boundary that crosses itself is refused with a marker.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { apiFromPage, demo, screenshot, signIn, startBrowser, startServer, type RunningBrowser, type RunningServer } from './support'
+
+let server: RunningServer
+let browser: RunningBrowser
+
+const stamp = Date.now().toString(36)
+const fieldName = `Creek quarter ${stamp}`
+// An empty spot (no demo data there), different on every run.
+const lat = 41.5 + (Date.now() % 1000) / 10_000
+const lon = -95.2
+
+beforeAll(async () => {
+  server = await startServer()
+  browser = await startBrowser()
+})
+
+afterAll(async () => {
+  await browser?.close()
+  await server?.stop()
+})
+
+type Page = RunningBrowser['page']
+
+/** The map element's box, and a click helper in map pixels relative to its centre. */
+async function mapFrame(page: Page) {
+  const box = await page.getByTestId('farm-map').boundingBox()
+  if (!box) throw new Error('The map has no box')
+  const cx = box.x + box.width / 2
+  const cy = box.y + box.height / 2
+  return {
+    click: async (dx: number, dy: number) => {
+      await page.mouse.click(cx + dx, cy + dy)
+      await page.waitForTimeout(350)
+    },
+    dblclick: async (dx: number, dy: number) => {
+      await page.mouse.dblclick(cx + dx, cy + dy)
+      await page.waitForTimeout(350)
+    },
+  }
+}
+
+/** The number at the start of a text such as "12.4° elevation, towards E (92°)". */
+function leadingNumber(text: string | null): number {
+  const m = /-?\d+(?:\.\d+)?/.exec((text ?? '').replace(/,/g, ''))
+  if (!m) throw new Error(`No number in "${text}"`)
+  return Number(m[0])
+}
+
+/** The height number box (ant-design-vue puts the test id on the box or on its input). */
+function heightInput(page: Page) {
+  return page.locator('input[data-testid="obstruction-height"], [data-testid="obstruction-height"] input').first()
+}
+
+async function horizonPeak(page: Page): Promise<string> {
+  return (await page.getByTestId('sky-horizon-peak').textContent())?.trim() ?? ''
+}
+
+describe('Fields: drawing, areas and the live sky check', () => {
+  it('draws a field, names it, saves it and shows its area', async () => {
+    const { page } = browser
+    await signIn(page, server.baseUrl, demo.contractor)
+    await page.goto(`${server.baseUrl}/fields`)
+    await page.getByRole('heading', { name: 'Fields', level: 1 }).waitFor()
+    await page.getByTestId('farm-map').locator('canvas').first().waitFor()
+
+    await page.getByTestId('goto').fill(`${lat.toFixed(4)}, ${lon}`)
+    await page.getByTestId('goto').press('Enter')
+    await page.waitForTimeout(600)
+
+    await page.getByTestId('tool-draw-field').click()
+    await expect.poll(() => page.getByTestId('tool-help').textContent()).toContain('double-click to finish')
+    const map = await mapFrame(page)
+    await map.click(-160, -110)
+    await map.click(140, -110)
+    await map.click(140, 110)
+    // While drawing, the area so far is shown over the map.
+    await expect.poll(() => page.getByTestId('sketch-area').textContent()).toMatch(/ha/)
+    await map.dblclick(-160, 110)
+
+    const editor = page.getByTestId('field-editor')
+    await editor.waitFor()
+    const drawnArea = (await page.getByTestId('field-area').textContent()) ?? ''
+    expect(drawnArea).toMatch(/\d[\d.,]* ha \([\d.,]+ ac\)|\d[\d.,]* ac \([\d.,]+ ha\)/)
+    await page.getByTestId('field-name').fill(fieldName)
+    await page.getByTestId('save-field').click()
+    await page.locator('.ant-message').getByText(`${fieldName} saved`).waitFor()
+    await screenshot(page, 'fields-drawn-field')
+
+    // The server stored it with the area the page shows.
+    const farmId = Number(new URL(page.url()).searchParams.get('farm'))
+    expect(farmId).toBeGreaterThan(0)
+    const list = await apiFromPage(page, `/api/farms/${farmId}/fields`)
+    expect(list.status).toBe(200)
+    const stored = (list.body as { name: string; areaHa: number }[]).find((f) => f.name === fieldName)
+    expect(stored).toBeDefined()
+    // 300 x 220 px at zoom 16 near 41.5 N (about 1.83 m per px): about 22 ha.
+    expect(stored!.areaHa).toBeGreaterThan(15)
+    expect(stored!.areaHa).toBeLessThan(30)
+    const shownHa = /([\d.,]+) ha/.exec((await page.getByTestId('field-area').textContent()) ?? '')
+    expect(shownHa).not.toBeNull()
+    expect(Math.abs(Number(shownHa![1].replace(/,/g, '')) - stored!.areaHa)).toBeLessThan(0.1)
+
+    // The table beside the map lists it once the editor is closed.
+    await editor.getByRole('button', { name: 'Close' }).click()
+    await page.getByTestId('fields-table').getByText(fieldName).waitFor()
+  }, 90_000)
+
+  it('draws a tree line beside the field and the sky check follows its height', async () => {
+    const { page } = browser
+    const map = await mapFrame(page)
+
+    await page.getByTestId('tool-tree-line').click()
+    await map.click(162, -100)
+    await map.dblclick(162, 100)
+    const editor = page.getByTestId('obstruction-editor')
+    await editor.waitFor()
+    // The height box is in the user's units (this contractor may work in feet).
+    const label = (await editor.locator('label', { hasText: /^Height \((m|ft)\)$/ }).textContent()) ?? ''
+    const feet = label.includes('ft')
+    const typed = (m: number) => (feet ? String(Math.round(m / 0.3048)) : String(m))
+    const metres = (text: string) => (feet ? Number(text) * 0.3048 : Number(text))
+    await heightInput(page).fill(typed(10))
+    await heightInput(page).press('Tab')
+    await page.getByTestId('save-obstruction').click()
+    await page.locator('.ant-message').getByText(feet ? 'Tree line saved (33 ft)' : 'Tree line saved (10 m)').waitFor()
+
+    // Sky check at a point inside the field, a little west of the tree line.
+    await page.getByTestId('tool-sky-check').click()
+    await map.click(128, 0)
+    const panel = page.getByTestId('sky-check')
+    await panel.waitFor()
+    await page.getByTestId('sky-plot').waitFor()
+    await expect.poll(() => horizonPeak(page), { timeout: 15_000 }).toMatch(/towards E/)
+    const low = leadingNumber(await horizonPeak(page))
+    const blockedLow = leadingNumber(await page.getByTestId('sky-blocked').textContent())
+    expect(await page.getByTestId('sky-hdop').textContent()).toMatch(/^\d+\.\d\d$|no fix/)
+    await screenshot(page, 'fields-sky-check-10m')
+
+    // Raise the tree line (unsaved): the horizon cut rises without saving.
+    await heightInput(page).fill(typed(30))
+    await heightInput(page).press('Tab')
+    await expect.poll(async () => leadingNumber(await horizonPeak(page)), { timeout: 5_000 }).toBeGreaterThan(low + 10)
+    const high = leadingNumber(await horizonPeak(page))
+    const blockedHigh = leadingNumber(await page.getByTestId('sky-blocked').textContent())
+    expect(blockedHigh).toBeGreaterThanOrEqual(blockedLow)
+    // Geometry: the cut is atan((h - antenna) / d); d from the first reading, then the second must agree.
+    const antennaM = 3.5
+    const distanceM = (metres(typed(10)) - antennaM) / Math.tan((low * Math.PI) / 180)
+    const expectedHigh = (Math.atan((metres(typed(30)) - antennaM) / distanceM) * 180) / Math.PI
+    expect(Math.abs(high - expectedHigh)).toBeLessThan(1.5)
+
+    // The slider drives the same value: one step down from 30 m lowers the cut.
+    await page.getByTestId('obstruction-editor').locator('.ant-slider-handle').first().focus()
+    await page.keyboard.press('ArrowLeft')
+    await expect.poll(async () => leadingNumber(await horizonPeak(page))).toBeLessThan(high)
+    await screenshot(page, 'fields-sky-check-30m')
+
+    // Moving the time changes the satellites, not the horizon.
+    const timeBefore = await page.getByTestId('sky-time').textContent()
+    await page.getByTestId('sky-check').locator('.time .ant-slider-handle').first().focus()
+    for (let i = 0; i < 8; i++) await page.keyboard.press('ArrowRight')
+    await expect.poll(() => page.getByTestId('sky-time').textContent()).not.toBe(timeBefore)
+    await page.getByTestId('sky-now').click()
+    await expect.poll(() => page.getByTestId('sky-time').textContent()).toBe(timeBefore)
+    expect(await page.getByTestId('safety-caution').first().textContent()).toContain('Auto-steer must be supervised')
+  }, 90_000)
+
+  it('refuses a boundary that crosses itself and marks where', async () => {
+    const { page } = browser
+    await page.getByRole('button', { name: 'Close sky check' }).click()
+    await page.getByTestId('tool-draw-field').click()
+    const map = await mapFrame(page)
+    // A bow tie north of the first field.
+    await map.click(-100, -250)
+    await map.click(40, -140)
+    await map.click(40, -250)
+    await map.dblclick(-100, -140)
+    await page.getByTestId('field-editor').waitFor()
+    await page.getByTestId('field-name').fill(`Bow tie ${stamp}`)
+    await page.getByTestId('save-field').click()
+    const error = page.getByTestId('boundary-error')
+    await error.waitFor()
+    expect(await error.textContent()).toMatch(/crosses itself/)
+    await screenshot(page, 'fields-boundary-crosses')
+    const farmId = Number(new URL(page.url()).searchParams.get('farm'))
+    const list = await apiFromPage(page, `/api/farms/${farmId}/fields`)
+    expect((list.body as { name: string }[]).some((f) => f.name === `Bow tie ${stamp}`)).toBe(false)
+  }, 90_000)
+})
