@@ -6,6 +6,7 @@ import { hashPassword } from '../server/auth/password.ts'
 import { loadConfig } from '../server/config.ts'
 import { openDatabase, type Database } from '../server/db/index.ts'
 import { createStore } from '../server/db/repositories/index.ts'
+import { seedFields } from './fields.ts'
 import { seedPlanning } from './planning.ts'
 import { DEMO_PASSWORD, demoBusinessName, demoFarms, demoUsers } from './scenario.ts'
 
@@ -18,6 +19,13 @@ export interface SeedResult {
 export async function seedDemo(db: Database): Promise<SeedResult> {
   // Service levels, work types and machines first: fields and passes refer to them.
   await seedPlanning(db)
+  const result = await seedPeopleAndFarms(db)
+  // The demo farms' fields and obstructions (each farm only while it has none).
+  await seedFields(db)
+  return result
+}
+
+async function seedPeopleAndFarms(db: Database): Promise<SeedResult> {
   const store = createStore(db)
   if ((await store.repos.users.count()) > 0) return { seeded: false, users: 0, farms: 0 }
   const passwordHash = await hashPassword(DEMO_PASSWORD)
