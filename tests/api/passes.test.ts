@@ -185,3 +185,19 @@ describe('changing a pass', () => {
     expect((await w.crew.patch('/api/passes/999999', { notes: 'x' })).status).toBe(404)
   })
 })
+
+describe('demo passes', () => {
+  it('are in the coming days on the demo fields, and seeding again adds none', async () => {
+    const { seedPasses } = await import('../../seed/passes.ts')
+    await seedPasses(server.database.db)
+    expect(await seedPasses(server.database.db)).toEqual({ passes: 0, skipped: [] })
+    const now = Date.now()
+    const upcoming = (await w.admin.get(`/api/passes?from=${new Date(now).toISOString()}&to=${new Date(now + 8 * 86_400_000).toISOString()}`)).body as Pass[]
+    const demo = upcoming.filter((p) => p.createdBy === null && !p.fieldName.startsWith('Test field') && !p.fieldName.startsWith('Matrix field'))
+    expect(demo.length).toBeGreaterThan(0)
+    for (const p of demo) {
+      expect(Date.parse(p.start)).toBeGreaterThan(now)
+      expect(['planned', 'confirmed']).toContain(p.status)
+    }
+  })
+})
