@@ -135,9 +135,19 @@ export async function startBrowser(): Promise<RunningBrowser> {
   }
 }
 
+/** Waits until no table or panel shows its loading spinner. */
+export async function settled(page: Page): Promise<void> {
+  const deadline = Date.now() + 30_000
+  while ((await page.locator('.ant-spin-spinning').count()) > 0) {
+    if (Date.now() > deadline) throw new Error('The page kept loading for 30 s')
+    await page.waitForTimeout(100)
+  }
+}
+
 /** Saves a full-page screenshot as tests/.artifacts/<name>.png (git-ignored) for people to look at. */
 export async function screenshot(page: Page, name: string): Promise<void> {
   mkdirSync(artifactsDir, { recursive: true })
+  await settled(page)
   await page.screenshot({ path: join(artifactsDir, `${name}.png`), fullPage: true })
 }
 
