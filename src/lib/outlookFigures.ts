@@ -1,0 +1,149 @@
+/**
+ * What a cell of the outlook grid can show besides the hour's state: one continuous
+ * figure per hour, drawn on the cividis ramp. Position 0 of the ramp (dark blue) is
+ * always the better end, as Clear is dark blue: low DOP and small errors, many
+ * satellites and a large share of the field.
+ */
+import type { UnitSystem } from '@shared/schemas'
+import type { ForecastHour } from '@shared/schemas/forecast'
+import { errorUnit, formatDop, formatErrorM, formatShare, type ErrorUnit } from './units'
+
+export const figureKeys = ['hdop', 'vdop', 'h95', 'v95', 'sats', 'share'] as const
+export type FigureKey = (typeof figureKeys)[number]
+
+/** What the cells show: the state for the chosen work type, or a figure. */
+export type CellShow = 'state' | FigureKey
+
+export interface FigureDef {
+  key: FigureKey
+  /** for the picker */
+  label: string
+  /** for legends and axis names */
+  short: string
+  higherIsBetter: boolean
+  /** errors are shown in cm/in (or m/ft); the rest are plain numbers */
+  isError: boolean
+  value: (hour: ForecastHour, workTypeId: number | null) => number | null
+}
+
+export const figures: Record<FigureKey, FigureDef> = {
+  hdop: {
+    key: 'hdop',
+    label: 'HDOP at the worst point',
+    short: 'HDOP',
+    higherIsBetter: false,
+    isError: false,
+    value: (h) => h.hdopMax,
+  },
+  vdop: {
+    key: 'vdop',
+    label: 'VDOP at the worst point',
+    short: 'VDOP',
+    higherIsBetter: false,
+    isError: false,
+    value: (h) => h.vdopMax,
+  },
+  h95: {
+    key: 'h95',
+    label: 'Horizontal error at 95 % (worst point)',
+    short: 'Horizontal error 95 %',
+    higherIsBetter: false,
+    isError: true,
+    value: (h) => h.h95MaxM,
+  },
+  v95: {
+    key: 'v95',
+    label: 'Vertical error at 95 % (worst point)',
+    short: 'Vertical error 95 %',
+    higherIsBetter: false,
+    isError: true,
+    value: (h) => h.v95MaxM,
+  },
+  sats: {
+    key: 'sats',
+    label: 'Satellites in use (fewest)',
+    short: 'Satellites',
+    higherIsBetter: true,
+    isError: false,
+    value: (h) => h.satsMin,
+  },
+  share: {
+    key: 'share',
+    label: 'Share of the field meeting the work type',
+    short: 'Share of field',
+    higherIsBetter: true,
+    isError: false,
+    value: (h, workTypeId) => (workTypeId === null ? null : (h.workTypes[String(workTypeId)]?.share ?? null)),
+  },
+}
+
+/** The range of a figure drawn on the ramp. */
+export interface FigureScale {
+  figure: FigureDef
+  min: number
+  max: number
+  /** for error figures: the unit of the legend */
+  unit: ErrorUnit | null
+}
+
+/**
+ * The scale of a figure over the hours shown: from the smallest to the largest value,
+ * widened a little when they are all equal. Shares always span 0..1.
+ * @example figureScale(figures.hdop, hours, null, 'metric') // -> { min: 0.6, max: 2.9, ... }
+ */
+export function figureScale(figure: FigureDef, hours: Iterable<ForecastHour>, workTypeId: number | null, units: UnitSystem): FigureScale {
+  const values: (number | null)[] = []
+  for (const h of hours) values.push(figure.value(h, workTypeId))
+  return scaleOfValues(figure, values, units)
+}
+
+/** The scale of a figure over any list of values (nulls and non-finite values are skipped). */
+export function scaleOfValues(figure: FigureDef, values: Iterable<number | null>, units: UnitSystem): FigureScale {
+  let min = Infinity
+  let max = -Infinity
+  for (const v of values) {
+    if (v === null || !Number.isFinite(v)) continue
+    if (v < min) min = v
+    if (v > max) max = v
+  }
+  if (figure.key === 'share') {
+    min = 0
+    max = 1
+  }
+  if (!Number.isFinite(min)) {
+    min = 0
+    max = 1
+  } else if (max - min < 1e-9) {
+    const pad = Math.max(Math.abs(max) * 0.1, figure.key === 'sats' ? 1 : 0.01)
+    min = Math.max(0, min - pad)
+    max = max + pad
+  }
+  return { figure, min, max, unit: figure.isError ? errorUnit(max, units) : null }
+}
+
+/**
+ * Where a value sits on the ramp, 0 (better, dark blue) to 1 (worse, yellow); null for
+ * an hour without a value (no fix).
+ */
+export function rampPosition(scale: FigureScale, value: number | null): number | null {
+  if (value === null || !Number.isFinite(value)) return null
+  const t = (value - scale.min) / (scale.max - scale.min)
+  const clamped = Math.min(1, Math.max(0, t))
+  return scale.figure.higherIsBetter ? 1 - clamped : clamped
+}
+
+/** A figure's value as text in the user's units. */
+export function formatFigure(figure: FigureDef, value: number | null, units: UnitSystem, unit?: ErrorUnit | null): string {
+  if (value === null || !Number.isFinite(value)) return figure.key === 'share' ? '—' : 'no fix'
+  if (figure.isError) return formatErrorM(value, units, unit ?? undefined)
+  if (figure.key === 'share') return formatShare(value)
+  if (figure.key === 'sats') return String(Math.round(value))
+  return formatDop(value)
+}
+
+/** Evenly spaced legend ticks (values) from min to max. */
+export function legendTicks(scale: FigureScale, count = 5): number[] {
+  const out: number[] = []
+  for (let i = 0; i < count; i++) out.push(scale.min + ((scale.max - scale.min) * i) / (count - 1))
+  return out
+}
