@@ -11,7 +11,6 @@ import type { SessionUser } from '../../shared/schemas/auth.ts'
 import { activePassStatuses, type CalendarToken, type CalendarTokenInput, type CreatedCalendarToken } from '../../shared/schemas/passes.ts'
 import { assertFarmVisible, assertRole } from '../auth/access.ts'
 import type { CalendarTokenRow } from '../db/repositories/calendarTokens.ts'
-import { describePass } from './passes.ts'
 import { notFound } from '../http/errors.ts'
 import type { ServiceContext } from './context.ts'
 import { hourStates } from './windows.ts'
@@ -111,10 +110,8 @@ export function createCalendarService(ctx: ServiceContext) {
         prodId: { company: 'Skyfurrow', product: 'Pass calendar', language: 'EN' },
         ttl: REFRESH_S,
       })
-      cal.x([
-        ['X-WR-TIMEZONE', zone],
-        ['REFRESH-INTERVAL;VALUE=DURATION', `PT${REFRESH_S / 3600}H`],
-      ])
+      // ttl writes REFRESH-INTERVAL and X-PUBLISHED-TTL; the zone is noted for people and clients.
+      cal.x('X-WR-TIMEZONE', zone)
 
       const passes = await repos.passes.list({
         farmId: farm.id,
@@ -126,7 +123,7 @@ export function createCalendarService(ctx: ServiceContext) {
         const start = p.startAt.getTime()
         const end = start + p.durationMin * MINUTE_MS
         const lines = [
-          describePass(p),
+          `${p.workTypeName} on ${p.fieldName} (${p.farmName})`,
           `Farm time (${zone}): ${localLabel(start, zone)} to ${localLabel(end, zone)}`,
           `Status: ${p.status}`,
           p.machineName ? `Machine: ${p.machineName}${p.crew ? ` (crew: ${p.crew})` : ''}` : 'Machine: not assigned',
