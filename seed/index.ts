@@ -7,6 +7,7 @@ import { loadConfig } from '../server/config.ts'
 import { openDatabase, type Database } from '../server/db/index.ts'
 import { createStore } from '../server/db/repositories/index.ts'
 import { seedFields } from './fields.ts'
+import { seedPasses } from './passes.ts'
 import { seedPlanning } from './planning.ts'
 import { DEMO_PASSWORD, demoBusinessName, demoFarms, demoUsers } from './scenario.ts'
 
@@ -22,6 +23,8 @@ export async function seedDemo(db: Database): Promise<SeedResult> {
   const result = await seedPeopleAndFarms(db)
   // The demo farms' fields and obstructions (each farm only while it has none).
   await seedFields(db)
+  // Last: demo passes in the coming days on those fields (only while none is upcoming).
+  await seedPasses(db)
   return result
 }
 
