@@ -307,9 +307,13 @@ export function createOrbitFeedService(ctx: ServiceContext) {
       const newest = await store.repos.orbits.newestFeedSet()
       let lastRun: OrbitFeedStatus['lastRun'] = null
       if (last) {
-        let parsed: Partial<OrbitFeedResult> = {}
+        let parsed: Partial<OrbitFeedResult> & { summary?: string } = {}
         try {
-          parsed = last.resultJson ? (JSON.parse(last.resultJson) as Partial<OrbitFeedResult>) : {}
+          const raw = last.resultJson ? (JSON.parse(last.resultJson) as Record<string, unknown>) : {}
+          // Rows of the run-now endpoint hold the result itself; job-queue rows wrap it as
+          // { summary, data: result }.
+          const inner = raw.data && typeof raw.data === 'object' ? (raw.data as Record<string, unknown>) : raw
+          parsed = { ...(inner as Partial<OrbitFeedResult>), summary: typeof raw.summary === 'string' ? raw.summary : undefined }
         } catch {
           parsed = {}
         }
@@ -317,7 +321,7 @@ export function createOrbitFeedService(ctx: ServiceContext) {
         lastRun = {
           at: (last.finishedAt ?? last.updatedAt).toISOString(),
           ok,
-          message: parsed.message ?? last.error ?? (ok ? 'Fetched.' : 'Failed.'),
+          message: (ok ? (parsed.message ?? parsed.summary) : (last.error ?? parsed.message)) ?? (ok ? 'Fetched.' : 'Failed.'),
           orbitSetId: parsed.ok ? (parsed.orbitSetId ?? null) : null,
           attempts: parsed.attempts ?? last.attempts,
         }

@@ -162,6 +162,15 @@ describe('run now and status', () => {
     expect(after.newestFeedSet.id).toBe(run.body.orbitSetId)
   })
 
+  it('shows runs recorded by the job queue as well (result wrapped as { summary, data })', async () => {
+    const result = await fetchOrbitFeed(server.database.db, feedUrl)
+    const jobId = await server.repos.orbits.startFeedRun(feedUrl, null)
+    await server.repos.orbits.finishFeedRun(jobId, { ok: true, error: null, resultJson: JSON.stringify({ summary: result.message, data: result }) })
+    const status = (await office.get('/api/orbit-feed/status')).body
+    expect(status.lastRun).toMatchObject({ ok: true, message: result.message, orbitSetId: result.ok ? result.orbitSetId : -1, attempts: 1 })
+    expect(status).toMatchObject({ url: '', usesLocalFake: true })
+  })
+
   it('with ORBIT_FEED_URL empty the app fetches its own local fake feed', () => {
     expect(feedUrlOf({ orbitFeedUrl: '', publicUrl: 'http://127.0.0.1:3000' })).toBe('http://127.0.0.1:3000/api/orbit-feed/nominal.json')
     expect(feedUrlOf({ orbitFeedUrl: 'https://feeds.example.net/gnss.json', publicUrl: 'x' })).toBe('https://feeds.example.net/gnss.json')
