@@ -100,10 +100,11 @@ export function boundaryProblems(input: Boundary): string[] {
     for (let j = i + 1; j < parts.length; j++) {
       const a = turf.polygon(parts[i])
       const c = turf.polygon(parts[j])
-      if (turf.booleanIntersects(a, c)) {
-        const common = turf.intersect(turf.featureCollection([a, c]))
-        const where = common ? turf.pointOnFeature(common).geometry.coordinates : parts[j][0][0]
-        problems.push(`parts ${i + 1} and ${j + 1} of the boundary overlap near ${formatPlace(where)}`)
+      if (!turf.booleanIntersects(a, c)) continue
+      // Parts that only touch (a shared edge or corner) are fine; overlapping area is not.
+      const common = turf.intersect(turf.featureCollection([a, c]))
+      if (common && turf.area(common) > 1) {
+        problems.push(`parts ${i + 1} and ${j + 1} of the boundary overlap near ${formatPlace(turf.pointOnFeature(common).geometry.coordinates)}`)
       }
     }
   }
