@@ -29,7 +29,7 @@ export type { BulkRuntime, PropagationOptions } from './propagation'
 export { gmstRad, gpsMinusUtcS, utcMsToGpsSeconds, gpsSecondsToUtcMs, resolveGpsWeek, GPS_EPOCH_MS } from './time'
 export { fieldSamplePoints, fieldPolygons } from './sampling'
 export type { SamplePoint, FieldGeometry } from './sampling'
-export { forecastField, forecastPoint, skyView, hourState } from './forecast'
+export { forecastField, hourState } from './forecast'
 export type {
   FieldForecastInput,
   FieldForecast,
@@ -37,17 +37,13 @@ export type {
   HourState,
   MedianMax,
   Outage,
-  PointEpoch,
-  PointForecastInput,
   PointHourDetail,
   SampleArrays,
-  SatStatus,
-  SkyViewInput,
-  SkyView,
-  SkySatellite,
   SkySettings,
   StageTimes,
   WorkType,
 } from './forecast'
+export { forecastPoint, skyView } from './sky'
+export type { PointEpoch, PointForecastInput, SatStatus, SkyViewInput, SkyView, SkySatellite } from './sky'
 export { DEMO_SERVICE_LEVELS, DEMO_WORK_TYPES } from './defaults'
 export * as constants from './constants'
