@@ -1,0 +1,17 @@
+import type { PassStatus } from '@shared/schemas/passes'
+
+/** The words for a pass's status. */
+export const passStatusLabels: Record<PassStatus, string> = {
+  planned: 'Planned',
+  confirmed: 'Confirmed',
+  done: 'Done',
+  cancelled: 'Cancelled',
+}
+
+/** Tag colours for statuses: neutral for planned, the brand green for confirmed, muted for the rest. */
+export const passStatusColours: Record<PassStatus, string> = {
+  planned: 'default',
+  confirmed: 'geekblue',
+  done: 'default',
+  cancelled: '',
+}
