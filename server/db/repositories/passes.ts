@@ -177,9 +177,12 @@ export function passesRepository(db: DbOrTx) {
       await db.update(passes).set({ ...changes, updatedAt: new Date() }).where(eq(passes.id, id))
     },
 
-    /** Writes the at-risk columns only (the forecast recheck); does not touch updated_at. */
+    /**
+     * Writes the at-risk columns. updated_at moves too: the pass as people and calendar
+     * feeds see it (LAST-MODIFIED, DTSTAMP) has changed.
+     */
     async setRisk(id: number, risk: { atRisk: boolean; atRiskReason: string | null; suggestedStartAt: Date | null }): Promise<void> {
-      await db.update(passes).set({ ...risk, updatedAt: sql`${passes.updatedAt}` }).where(eq(passes.id, id))
+      await db.update(passes).set({ ...risk, updatedAt: new Date() }).where(eq(passes.id, id))
     },
   }
 }
