@@ -1,51 +1,22 @@
-import type { Boundary } from '@shared/schemas/geo'
-import type { Field } from '@shared/schemas/fields'
+import type { FieldImportOptions, FieldImportResult, ImportPreview } from '@shared/schemas/fields'
 import { postForm } from './multipart'
 
-/** One feature found in an uploaded boundary file. */
-export interface ImportFeature {
-  index: number
-  geometry: Boundary | null
-  properties: Record<string, unknown>
-  areaHa: number | null
-  /** Why the feature cannot become a field as it is (empty when it can). */
-  problems: string[]
-}
-
-export interface ImportPreview {
-  format?: string
-  features: ImportFeature[]
-  /** Property names found on the features, to map one to the field name. */
-  attributes: string[]
-  /** A token the server gives to create from the same upload without sending it again. */
-  uploadId?: string
-}
-
-export interface ImportChoice {
-  selections: { index: number; name: string }[]
-  nameAttribute?: string
-  serviceLevelId: number
-  antennaHeightM: number
-}
-
-export interface ImportResult {
-  created: Field[]
-}
+export type { ImportFeature, ImportPreview } from '@shared/schemas/fields'
 
 /** Step 1: the server reads the file and lists what it found; nothing is stored. */
 export function previewImport(farmId: number, file: File): Promise<ImportPreview> {
   const form = new FormData()
   form.append('file', file)
-  form.append('step', 'preview')
-  return postForm<ImportPreview>(`/farms/${farmId}/fields/import`, form, { quiet: [400, 413, 415, 422] })
+  return postForm<ImportPreview>(`/farms/${farmId}/fields/import/preview`, form, { quiet: [400, 413, 415, 422] })
 }
 
-/** Step 2: the chosen features become fields. */
-export function createFromImport(farmId: number, file: File, choice: ImportChoice, uploadId?: string): Promise<ImportResult> {
+/**
+ * Step 2: the chosen features become fields (the file is sent again: the server keeps
+ * nothing between the steps). 422 'confirm-area' asks to confirm unusual areas.
+ */
+export function createFromImport(farmId: number, file: File, options: FieldImportOptions): Promise<FieldImportResult> {
   const form = new FormData()
+  form.append('options', JSON.stringify(options))
   form.append('file', file)
-  form.append('step', 'create')
-  if (uploadId) form.append('uploadId', uploadId)
-  form.append('options', JSON.stringify(choice))
-  return postForm<ImportResult>(`/farms/${farmId}/fields/import`, form, { quiet: [400, 409, 413, 415, 422] })
+  return postForm<FieldImportResult>(`/farms/${farmId}/fields/import`, form, { quiet: [400, 409, 413, 415, 422] })
 }
