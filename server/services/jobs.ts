@@ -1,7 +1,7 @@
 // Jobs: the list for office and admin, the summary for the header's progress bar, and the
 // manual recompute of a field's forecast.
 import type { SessionUser } from '../../shared/schemas/auth.ts'
-import type { Job, JobList, JobListQuery, JobSummary } from '../../shared/schemas/jobs.ts'
+import { jobKinds, type Job, type JobList, type JobListQuery, type JobSummary } from '../../shared/schemas/jobs.ts'
 import { assertFarmVisible } from '../auth/access.ts'
 import type { JobListRow } from '../db/repositories/jobs.ts'
 import type { JobRow } from '../db/schema-planning.ts'
@@ -55,7 +55,7 @@ export function createJobsService(ctx: ServiceContext) {
     },
 
     async summary(): Promise<JobSummary> {
-      const s = await store.repos.jobs.summary()
+      const s = await store.repos.jobs.summary(jobKinds)
       const total = s.finishedInBatch + s.running + s.queued
       const active = s.running + s.queued > 0
       return {

@@ -19,6 +19,8 @@ export const RouteNames = {
   adminUsers: 'admin-users',
   adminWorkTypes: 'admin-work-types',
   adminServiceLevels: 'admin-service-levels',
+  adminMachines: 'admin-machines',
+  jobs: 'jobs',
   mailbox: 'mailbox',
 } as const
 
@@ -43,6 +45,8 @@ export const pageRoles = {
   [RouteNames.mailbox]: staff,
   [RouteNames.adminWorkTypes]: staff,
   [RouteNames.adminServiceLevels]: staff,
+  [RouteNames.adminMachines]: staff,
+  [RouteNames.jobs]: staff,
   [RouteNames.adminFarms]: ['admin'],
   [RouteNames.adminUsers]: ['admin'],
 } as const satisfies Partial<Record<RouteName, readonly Role[]>>

@@ -29,6 +29,8 @@ const adminLinks: (NavLink & { name: NavPageName })[] = [
   { name: RouteNames.adminUsers, label: 'Users', hint: 'Accounts and roles' },
   { name: RouteNames.adminWorkTypes, label: 'Work types', hint: 'Precision each job needs' },
   { name: RouteNames.adminServiceLevels, label: 'Service levels', hint: 'Correction services' },
+  { name: RouteNames.adminMachines, label: 'Machines', hint: 'Tractors, crews, antennas' },
+  { name: RouteNames.jobs, label: 'Forecast jobs', hint: 'Recomputes and their progress' },
 ]
 
 const mailboxLink: NavLink & { name: NavPageName } = {

@@ -292,8 +292,8 @@ export function jobsRepository(db: DbOrTx) {
       return out
     },
 
-    /** Figures for the header progress bar (see JobSummary). */
-    async summary(now = new Date()): Promise<{ running: number; queued: number; runningProgress: number; finishedInBatch: number; failedRecently: number }> {
+    /** Figures for the header progress bar (see JobSummary), over jobs of the given kinds. */
+    async summary(kinds: readonly string[], now = new Date()): Promise<{ running: number; queued: number; runningProgress: number; finishedInBatch: number; failedRecently: number }> {
       const [active] = await db
         .select({
           running: sql<number>`SUM(${jobs.status} = 'running')`,
@@ -302,11 +302,11 @@ export function jobsRepository(db: DbOrTx) {
           oldest: min(jobs.createdAt),
         })
         .from(jobs)
-        .where(inArray(jobs.status, ['queued', 'running']))
+        .where(and(inArray(jobs.status, ['queued', 'running']), inArray(jobs.kind, [...kinds])))
       const [{ failedRecently }] = await db
         .select({ failedRecently: count() })
         .from(jobs)
-        .where(and(eq(jobs.status, 'failed'), gte(jobs.finishedAt, new Date(now.getTime() - 86_400_000))))
+        .where(and(eq(jobs.status, 'failed'), inArray(jobs.kind, [...kinds]), gte(jobs.finishedAt, new Date(now.getTime() - 86_400_000))))
       const running = Number(active?.running ?? 0)
       const queued = Number(active?.queued ?? 0)
       let finishedInBatch = 0
@@ -314,7 +314,7 @@ export function jobsRepository(db: DbOrTx) {
         const [{ n }] = await db
           .select({ n: count() })
           .from(jobs)
-          .where(and(inArray(jobs.status, ['done', 'failed']), gte(jobs.createdAt, active.oldest)))
+          .where(and(inArray(jobs.status, ['done', 'failed']), inArray(jobs.kind, [...kinds]), gte(jobs.createdAt, active.oldest)))
         finishedInBatch = n
       }
       return { running, queued, runningProgress: Number(active?.runningProgress ?? 0), finishedInBatch, failedRecently }

@@ -1,7 +1,7 @@
 import type { RouteRecordRaw } from 'vue-router'
 import { pageRoles, RouteNames } from '../names'
 
-/** Admin pages: farms and users (admin only), work types and service levels. */
+/** Admin pages: farms and users (admin only), work types, service levels, machines, forecast jobs. */
 export const adminRoutes: RouteRecordRaw[] = [
   { path: '/admin', redirect: { name: RouteNames.adminFarms }, meta: { title: 'Admin' } },
   {
@@ -27,5 +27,17 @@ export const adminRoutes: RouteRecordRaw[] = [
     name: RouteNames.adminServiceLevels,
     component: () => import('@/views/admin/AdminServiceLevelsView.vue'),
     meta: { title: 'Service levels', roles: pageRoles[RouteNames.adminServiceLevels] },
+  },
+  {
+    path: '/admin/machines',
+    name: RouteNames.adminMachines,
+    component: () => import('@/views/admin/AdminMachinesView.vue'),
+    meta: { title: 'Machines', roles: pageRoles[RouteNames.adminMachines] },
+  },
+  {
+    path: '/jobs',
+    name: RouteNames.jobs,
+    component: () => import('@/views/JobsView.vue'),
+    meta: { title: 'Forecast jobs', roles: pageRoles[RouteNames.jobs] },
   },
 ]
