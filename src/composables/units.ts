@@ -1,6 +1,5 @@
-import { computed } from 'vue'
-import type { UnitSystem } from '@shared/schemas'
-import { useSessionStore } from '@/stores/session'
+/** Unit conversions and formats for areas, heights and errors (pure; see useUnits for the user's choice). */
+import type { UnitSystem } from '@shared/schemas/common'
 
 /** Conversion factors (exact by definition of the international foot and acre). */
 export const M_PER_FT = 0.3048
@@ -39,10 +38,4 @@ export function formatError(errorM: number, units: UnitSystem): string {
 /** A number rounded to `digits` decimals, as text without trailing zeros beyond them. */
 export function roundTo(value: number, digits: number): string {
   return value.toLocaleString('en-US', { maximumFractionDigits: digits, minimumFractionDigits: 0 })
-}
-
-/** The signed-in user's unit system (metric when unknown). */
-export function useUnits() {
-  const session = useSessionStore()
-  return computed<UnitSystem>(() => session.user?.units ?? 'metric')
 }

@@ -4,8 +4,7 @@
  * the parse cache, so that it is unit-tested in Node.
  */
 import { nominalConstellation, NOMINAL_NAMES, parseOrbitFile, type NominalName, type Satellite } from '@shared/precision'
-import type { GnssSystem } from '@shared/schemas/orbits'
-import type { OrbitData } from '@/api/orbits'
+import type { GnssSystem, OrbitData } from '@shared/schemas/orbits'
 import type { OrbitInfo } from './skyProtocol'
 
 const nominalBySystem: Partial<Record<GnssSystem, NominalName>> = {

@@ -6,7 +6,7 @@
  * computed, so dragging a height slider never builds a queue.
  */
 import { skyView, type Outage, type Satellite } from '@shared/precision'
-import type { OrbitData } from '@/api/orbits'
+import type { OrbitData } from '@shared/schemas/orbits'
 import { config } from '@/config'
 import { nominalFallback, satellitesFromOrbitData, type BuiltSatellites } from './orbitSatellites'
 import type { FromWorker, SkyRequest, ToWorker } from './skyProtocol'
