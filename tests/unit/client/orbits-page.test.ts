@@ -1,7 +1,7 @@
 // Pure helpers of the Orbits page: refused-upload problems read from the error's fields,
 // element ages in words.
 import { describe, expect, it } from 'vitest'
-import { formatAgeDays, problemsFromFields } from '../../../src/views/orbits/problems'
+import { formatAgeDays, problemsFromFields } from '@/views/orbits/problems'
 
 describe('problemsFromFields', () => {
   it('reads record, line, satellite and message, in record order, leaving out the file sentence', () => {

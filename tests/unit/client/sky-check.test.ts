@@ -1,17 +1,26 @@
 // Pure parts of the Fields page and its sky check: the polar projection and horizon cut
 // of the sky view, unit formats, reading where a boundary problem is, and turning the
 // API's orbit data into the engine's satellites as the worker does.
-import { readFileSync } from 'node:fs'
-import { join } from 'node:path'
 import { describe, expect, it } from 'vitest'
 import { skyView } from '@shared/precision'
 import type { OrbitData } from '@shared/schemas/orbits'
-import { compassPoint, horizonCutPath, horizonPeak, markerPath, polarToXY, systemSymbols, trackPieces } from '../../../src/components/sky/polar'
-import { formatArea, formatError, formatHeight } from '../../../src/composables/units'
-import { positionFromMessage, positionsFromData } from '../../../src/views/fields/boundaryErrors'
-import { nominalFallback, nominalName, satellitesFromOrbitData } from '../../../src/workers/orbitSatellites'
+import { compassPoint, horizonCutPath, horizonPeak, markerPath, polarToXY, systemSymbols, trackPieces } from '@/components/sky/polar'
+import { formatArea, formatError, formatHeight } from '@/composables/units'
+import { positionFromMessage, positionsFromData } from '@/views/fields/boundaryErrors'
+import { nominalFallback, nominalName, satellitesFromOrbitData } from '@/workers/orbitSatellites'
 
-const root = join(import.meta.dirname, '..', '..', '..')
+// Three records of the project's invented GPS sample (tests/fixtures/precision/orbits/gps-sample.tle).
+const tle = [
+  'GPS TEST GA1 (PRN 01)',
+  '1 90001U 26900A   26334.50000000  .00000000  00000-0  00000-0 0  9990',
+  '2 90001  55.0000 159.8732 0001000   0.0000  74.7116  2.00569110    19',
+  'GPS TEST GA2 (PRN 02)',
+  '1 90002U 26900A   26334.50000000  .00000000  00000-0  00000-0 0  9991',
+  '2 90002  55.0000 159.8732 0001000   0.0000 328.3716  2.00569110    14',
+  'GPS TEST GA3 (PRN 03)',
+  '1 90003U 26900A   26334.50000000  .00000000  00000-0  00000-0 0  9992',
+  '2 90003  55.0000 159.8732 0001000   0.0000 178.2616  2.00569110    16',
+].join('\n')
 
 describe('polar sky view geometry', () => {
   it('puts the zenith in the middle, the horizon on the rim, north up and east right', () => {
@@ -98,7 +107,6 @@ describe('where a boundary problem is', () => {
 
 describe('satellites from the orbit data', () => {
   it('takes each constellation from its source: nominal by name, a stored file parsed with its options', () => {
-    const tle = readFileSync(join(root, 'tests', 'fixtures', 'precision', 'orbits', 'gps-sample.tle'), 'utf8')
     const data: OrbitData = {
       sources: [
         { system: 'GPS', kind: 'set', orbitSetId: 7, name: 'GPS sample', format: 'tle', content: tle, parseOptions: {} },
@@ -111,7 +119,7 @@ describe('satellites from the orbit data', () => {
     const built = satellitesFromOrbitData(data)
     const gps = built.satellites.filter((s) => s.system === 'GPS')
     const galileo = built.satellites.filter((s) => s.system === 'Galileo')
-    expect(gps.length).toBeGreaterThan(0)
+    expect(gps.map((s) => s.id)).toEqual(['90001', '90002', '90003'])
     expect(gps.every((s) => s.source === 'tle')).toBe(true)
     expect(galileo).toHaveLength(24)
     expect(galileo.every((s) => s.source === 'nominal')).toBe(true)
