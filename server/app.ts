@@ -22,6 +22,7 @@ import { importRoutes } from './routes/imports.ts'
 import { obstructionRoutes } from './routes/obstructions.ts'
 import { orbitRoutes } from './routes/orbits.ts'
 import { passRoutes } from './routes/passes.ts'
+import { planRoutes } from './routes/plans.ts'
 import { windowRoutes } from './routes/windows.ts'
 import { hourDetailRoutes } from './routes/hourDetail.ts'
 import { calendarRoutes } from './routes/calendar.ts'
@@ -137,6 +138,7 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
   api.use(windowRoutes(services))
   api.use(hourDetailRoutes(services))
   api.use(calendarRoutes(services))
+  api.use(planRoutes(services))
   api.use(apiNotFound)
   app.use('/api', api)
 

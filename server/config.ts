@@ -1,5 +1,9 @@
 // The server's configuration: the only place that reads process.env. Parsed once with zod;
 // a bad value stops start-up with a message naming the variable. Documented in .env.example.
+import { randomBytes } from 'node:crypto'
+import { mkdirSync, readFileSync, writeFileSync } from 'node:fs'
+import { dirname } from 'node:path'
+import { fileURLToPath } from 'node:url'
 import { z } from 'zod'
 
 const logLevels = ['error', 'warn', 'info', 'debug'] as const
@@ -47,6 +51,7 @@ const envSchema = z.object({
   JOBS_ENABLED: optionalString.pipe(z.enum(['true', 'false', '1', '0']).optional()),
   FORECAST_STEP_MIN: intIn(1, 60, 5),
   FORECAST_SAMPLES: intIn(8, 400, 64),
+  PLAN_LINK_SECRET: optionalString.pipe(z.string().min(32, 'PLAN_LINK_SECRET must have at least 32 characters').optional()),
   NIGHTLY_REFRESH_TIME: optionalString.pipe(
     z
       .string()
@@ -81,6 +86,33 @@ export interface Config {
   forecastSampleCount: number
   /** Server-local time ('HH:MM') of the nightly refresh that rolls the window forward. */
   nightlyRefreshTime: string
+  /** Key of the HMAC-SHA256 that signs the opt-out links of plan e-mails. */
+  planLinkSecret: string
+}
+
+/** Where a generated PLAN_LINK_SECRET is kept when none is configured (git-ignored .data/). */
+export const generatedSecretFile = fileURLToPath(new URL('../.data/plan-link-secret', import.meta.url))
+
+/**
+ * The secret of .data/plan-link-secret, created (32 random bytes, hex) on first use, so links
+ * stay valid across restarts of one installation without any set-up.
+ */
+function persistedSecret(file = generatedSecretFile): string {
+  try {
+    const existing = readFileSync(file, 'utf8').trim()
+    if (existing.length >= 32) return existing
+  } catch {
+    // Not there yet.
+  }
+  const secret = randomBytes(32).toString('hex')
+  mkdirSync(dirname(file), { recursive: true })
+  try {
+    writeFileSync(file, `${secret}\n`, { flag: 'wx', mode: 0o600 })
+    return secret
+  } catch {
+    // Another process wrote it first: use theirs.
+    return readFileSync(file, 'utf8').trim()
+  }
 }
 
 /** Parses the environment (process.env unless given); throws an Error listing every bad variable. */
@@ -116,6 +148,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     forecastStepMin: e.FORECAST_STEP_MIN,
     forecastSampleCount: e.FORECAST_SAMPLES,
     nightlyRefreshTime: e.NIGHTLY_REFRESH_TIME ?? '02:00',
+    planLinkSecret: e.PLAN_LINK_SECRET ?? persistedSecret(),
   }
 }
 

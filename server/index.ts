@@ -10,6 +10,7 @@ import { openDatabase } from './db/index.ts'
 import { createRepositories, createStore } from './db/repositories/index.ts'
 import { setListenerErrorHandler } from './events.ts'
 import { startJobs } from './jobs/index.ts'
+import { planJobHandlers, startPlanScheduler } from './jobs/planJobs.ts'
 import { createLogger } from './logger.ts'
 import { startFakeSmtp, type FakeSmtp } from './mail/fake-smtp.ts'
 import { createMailer } from './mail/transport.ts'
@@ -50,7 +51,10 @@ server.on('request', createApp({ config, db: database.db, mailer, logger }))
 
 // Forecast jobs: triggers on changes, the runner (worker threads), start-up recovery and sweep.
 setListenerErrorHandler((name, error) => logger.error(`listener of ${name} failed`, error))
-const jobsStarting = startJobs({ store: createStore(database.db), config, logger })
+const store = createStore(database.db)
+const jobsStarting = startJobs({ store, config, logger, handlers: planJobHandlers({ mailer }) })
+// The automatic weekly plans: due schedules become jobs (only where jobs run).
+const stopPlanScheduler = config.jobsEnabled ? startPlanScheduler({ store, logger }) : () => {}
 
 let stopping = false
 async function shutdown(signal: string): Promise<void> {
@@ -68,6 +72,7 @@ async function shutdown(signal: string): Promise<void> {
   })
   // A signal during start-up waits for the jobs to have started, then stops them.
   const jobs = await jobsStarting.catch(() => undefined)
+  stopPlanScheduler()
   await jobs?.stop()
   mailer.close()
   if (fakeSmtp) await fakeSmtp.close()

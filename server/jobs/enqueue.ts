@@ -17,6 +17,11 @@ export function onEnqueued(wake: () => void): () => void {
   return () => wakeups.delete(wake)
 }
 
+/** Wakes the local runners after a transaction that wrote job rows through the repository. */
+export function wakeJobRunners(): void {
+  for (const wake of wakeups) wake()
+}
+
 function isRetryable(error: unknown): boolean {
   let e: unknown = error
   for (let depth = 0; e && depth < 4; depth++) {

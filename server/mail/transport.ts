@@ -7,6 +7,8 @@ export interface OutgoingMail {
   text: string
   html: string
   attachments?: { filename: string; content: string | Buffer; contentType?: string }[]
+  /** A Message-ID of the sender's choosing ('<...@...>'); nodemailer makes one otherwise. */
+  messageId?: string
 }
 
 export interface Mailer {

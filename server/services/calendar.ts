@@ -5,12 +5,13 @@
 // unknown token is 404. Times are written in UTC; the farm's zone is noted in
 // X-WR-TIMEZONE and in each event's description.
 import { createHash, randomBytes } from 'node:crypto'
-import ical, { ICalEventBusyStatus, ICalEventStatus, ICalEventTransparency } from 'ical-generator'
+import ical, { ICalEventBusyStatus, ICalEventStatus, ICalEventTransparency, type ICalEventData } from 'ical-generator'
 import { HOUR_MS, MINUTE_MS, ceilHour, localLabel, type PlanningHour } from '../../shared/planning/index.ts'
 import type { SessionUser } from '../../shared/schemas/auth.ts'
 import { activePassStatuses, type CalendarToken, type CalendarTokenInput, type CreatedCalendarToken } from '../../shared/schemas/passes.ts'
 import { assertFarmVisible, assertRole } from '../auth/access.ts'
 import type { CalendarTokenRow } from '../db/repositories/calendarTokens.ts'
+import type { PassDetailRow } from '../db/repositories/passes.ts'
 import { notFound } from '../http/errors.ts'
 import type { ServiceContext } from './context.ts'
 import { hourStates } from './windows.ts'
@@ -54,6 +55,35 @@ export function clearRuns(hours: readonly PlanningHour[]): Array<{ startMs: numb
 }
 
 const feedUrl = (publicUrl: string, token: string) => `${publicUrl}/api/calendar/${token}.ics`
+
+/**
+ * The calendar event of a booked pass (UTC times, the farm's local times in the
+ * description); shared by the feed and the weekly plan's .ics attachment.
+ */
+export function passEventData(p: PassDetailRow, zone: string): ICalEventData {
+  const start = p.startAt.getTime()
+  const end = start + p.durationMin * MINUTE_MS
+  const lines = [
+    `${p.workTypeName} on ${p.fieldName} (${p.farmName})`,
+    `Farm time (${zone}): ${localLabel(start, zone)} to ${localLabel(end, zone)}`,
+    `Status: ${p.status}`,
+    p.machineName ? `Machine: ${p.machineName}${p.crew ? ` (crew: ${p.crew})` : ''}` : 'Machine: not assigned',
+  ]
+  if (p.atRisk) lines.push(`At risk: ${p.atRiskReason ?? 'the forecast no longer holds'}`)
+  if (p.notes) lines.push(`Notes: ${p.notes}`)
+  return {
+    id: `pass-${p.id}@skyfurrow`,
+    start: p.startAt,
+    end: new Date(end),
+    stamp: p.updatedAt,
+    lastModified: p.updatedAt,
+    summary: `${p.atRisk ? 'At risk: ' : ''}${p.workTypeName} · ${p.fieldName}`,
+    description: lines.join('\n'),
+    status: p.status === 'confirmed' ? ICalEventStatus.CONFIRMED : ICalEventStatus.TENTATIVE,
+    busystatus: ICalEventBusyStatus.BUSY,
+    transparency: ICalEventTransparency.OPAQUE,
+  }
+}
 
 export function createCalendarService(ctx: ServiceContext) {
   const { store, config } = ctx
@@ -119,30 +149,7 @@ export function createCalendarService(ctx: ServiceContext) {
         from: new Date(nowMs - FEED_PAST_MS),
         to: new Date(nowMs + FEED_AHEAD_MS),
       })
-      for (const p of passes) {
-        const start = p.startAt.getTime()
-        const end = start + p.durationMin * MINUTE_MS
-        const lines = [
-          `${p.workTypeName} on ${p.fieldName} (${p.farmName})`,
-          `Farm time (${zone}): ${localLabel(start, zone)} to ${localLabel(end, zone)}`,
-          `Status: ${p.status}`,
-          p.machineName ? `Machine: ${p.machineName}${p.crew ? ` (crew: ${p.crew})` : ''}` : 'Machine: not assigned',
-        ]
-        if (p.atRisk) lines.push(`At risk: ${p.atRiskReason ?? 'the forecast no longer holds'}`)
-        if (p.notes) lines.push(`Notes: ${p.notes}`)
-        cal.createEvent({
-          id: `pass-${p.id}@skyfurrow`,
-          start: p.startAt,
-          end: new Date(end),
-          stamp: p.updatedAt,
-          lastModified: p.updatedAt,
-          summary: `${p.atRisk ? 'At risk: ' : ''}${p.workTypeName} · ${p.fieldName}`,
-          description: lines.join('\n'),
-          status: p.status === 'confirmed' ? ICalEventStatus.CONFIRMED : ICalEventStatus.TENTATIVE,
-          busystatus: ICalEventBusyStatus.BUSY,
-          transparency: ICalEventTransparency.OPAQUE,
-        })
-      }
+      for (const p of passes) cal.createEvent(passEventData(p, zone))
 
       if (row.includeWindows) {
         const fields = await repos.fields.listByFarm(farm.id)

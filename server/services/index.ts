@@ -12,6 +12,7 @@ import { createForecastsService } from './forecasts.ts'
 import { createAtRiskService } from './atRisk.ts'
 import { createExportsService } from './exports.ts'
 import { createPassesService } from './passes.ts'
+import { createPlansService } from './plans.ts'
 import { createWindowsService } from './windows.ts'
 import { createHourDetailService } from './hourDetail.ts'
 import { createCalendarService } from './calendar.ts'
@@ -41,6 +42,7 @@ export function createServices(ctx: ServiceContext) {
     jobs: createJobsService(ctx),
     forecasts: createForecastsService(ctx),
     passes: createPassesService(ctx),
+    plans: createPlansService(ctx),
     windows: createWindowsService(ctx),
     hourDetail: createHourDetailService(ctx),
     calendar: createCalendarService(ctx),

@@ -268,6 +268,30 @@ const matrix: Record<string, Row> = {
     call: async (f, caller) => ({ params: { id: await calendarTokenId(f, caller) } }),
     expect: { ...only(['admin', 'office', 'client', 'otherClient'], 204), otherClient: 404 },
   },
+  // Weekly plans (tests/api/plans): admins and office staff; the opt-out link is public.
+  'GET /api/plans/weeks': { call: (f) => ({ query: `farmId=${f.farmId}` }), expect: only(['admin', 'office'], 200) },
+  'POST /api/plans/preview': {
+    call: (f) => ({ body: { farmId: f.farmId, weekStart: '2031-06-02', units: 'metric' } }),
+    expect: only(['admin', 'office'], 200),
+  },
+  // an empty body is refused before anything is sent
+  'POST /api/plans/send': { call: () => ({ body: {} }), expect: only(['admin', 'office'], 400) },
+  'GET /api/plans/sends': { call: (f) => ({ query: `farmId=${f.farmId}` }), expect: only(['admin', 'office'], 200) },
+  'GET /api/plans/revisions/:id': { call: () => ({ params: { id: 999_999 } }), expect: only(['admin', 'office'], 404) },
+  'POST /api/plans/revisions/:id/resend': {
+    call: () => ({ params: { id: 999_999 }, body: { confirm: true } }),
+    expect: only(['admin', 'office'], 404),
+  },
+  'GET /api/farms/:id/plan-schedule': { call: (f) => ({ params: { id: f.farmId } }), expect: only(['admin', 'office'], 200) },
+  'PUT /api/farms/:id/plan-schedule': { call: (f) => ({ params: { id: f.farmId }, body: {} }), expect: only(['admin', 'office'], 400) },
+  'GET /api/farms/:id/plan-opt-outs': { call: (f) => ({ params: { id: f.farmId } }), expect: only(['admin', 'office'], 200) },
+  'DELETE /api/farms/:id/plan-opt-outs/:email': {
+    call: (f) => ({ params: { id: f.farmId, email: 'nobody@example.test' } }),
+    expect: only(['admin', 'office'], 404),
+  },
+  // without a valid signed token: 400 for everyone, signed in or not
+  'GET /api/plans/opt-out': { call: () => ({ query: 'token=1.bm9ib2R5QGV4YW1wbGUudGVzdA.forged-signature' }), expect: everyone(400) },
+  'POST /api/plans/opt-out': { call: () => ({ body: { token: '1.bm9ib2R5QGV4YW1wbGUudGVzdA.forged-signature' } }), expect: everyone(400) },
   'GET /api/fields/:id/windows': {
     call: async (f) => ({ params: { id: await throwawayField(f) }, query: `workTypeId=${await sprayingId(f)}&allowNight=1` }),
     expect: farmEditors(200),

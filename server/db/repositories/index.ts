@@ -10,6 +10,7 @@ import { outagesRepository } from './outages.ts'
 import { mailboxRepository } from './mailbox.ts'
 import { forecastsRepository } from './forecasts.ts'
 import { passesRepository } from './passes.ts'
+import { plansRepository } from './plans.ts'
 import { calendarTokensRepository } from './calendarTokens.ts'
 import { jobsRepository } from './jobs.ts'
 import { machinesRepository } from './machines.ts'
@@ -33,6 +34,7 @@ export function createRepositories(db: DbOrTx) {
     jobs: jobsRepository(db),
     forecasts: forecastsRepository(db),
     passes: passesRepository(db),
+    plans: plansRepository(db),
     calendarTokens: calendarTokensRepository(db),
     fields: fieldsRepository(db),
     obstructions: obstructionsRepository(db),
