@@ -3,6 +3,7 @@
 // Messages out: { taskId, type: 'progress', done, total } after each chunk of hours,
 // then { taskId, type: 'result', hours, satellitesUsed, samplePoints } or
 // { taskId, type: 'error', message }.
+import { setPriority } from 'node:os'
 import { parentPort } from 'node:worker_threads'
 import { forecastField, type HourAggregate } from '../../shared/precision/index.ts'
 import type { EngineTask } from './inputs.ts'
@@ -38,6 +39,13 @@ export function runEngineTask(task: EngineTask, onChunk: (done: number, total: n
 }
 
 if (parentPort) {
+  // Linux keeps a nice value per thread: lowering this thread's priority leaves the main
+  // thread (the API) ahead of the engine when the cores are busy.
+  try {
+    setPriority(0, 10)
+  } catch {
+    // Not permitted here: run at normal priority.
+  }
   const port = parentPort
   port.on('message', (request: EngineRequest) => {
     try {

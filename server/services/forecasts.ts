@@ -12,7 +12,7 @@ import {
 } from '../../shared/schemas/forecast.ts'
 import { canSeeFarm } from '../auth/access.ts'
 import type { StoredForecastMeta } from '../db/repositories/forecasts.ts'
-import type { ForecastHourRow, JobRow } from '../db/schema-planning.ts'
+import type { ForecastHourRow, JobRow, WorkTypeRow } from '../db/schema-planning.ts'
 import { notFound } from '../http/errors.ts'
 import type { ServiceContext } from './context.ts'
 
@@ -52,14 +52,57 @@ export function isStale(meta: StoredForecastMeta | undefined, pending: JobRow | 
   return meta.hours !== window.hours || meta.firstHour.getTime() !== window.startMs || meta.minVersion !== meta.maxVersion
 }
 
+/**
+ * Hours of recently read fields, parsed once. A stored forecast only changes when a job
+ * replaces it, so an entry is used only while the field's newest job id, computed time
+ * and the asked range still match what the database says (checked on every request, so
+ * several server processes stay correct).
+ */
+interface CachedHours {
+  maxJobId: number | null
+  computedAtMs: number | null
+  fromMs: number
+  toMs: number
+  hours: ForecastHour[]
+}
+const HOURS_CACHE_SIZE = 200
+
 export function createForecastsService(ctx: ServiceContext) {
   const { store } = ctx
+  const cache = new Map<number, CachedHours>()
 
-  async function workTypeNames(hours: ForecastHour[]): Promise<Array<{ id: number; name: string }>> {
+  async function hoursOf(fieldId: number, meta: StoredForecastMeta | undefined, from: Date, to: Date): Promise<ForecastHour[]> {
+    const maxJobId = meta?.maxJobId ?? null
+    const computedAtMs = meta?.computedAt?.getTime() ?? null
+    const hit = cache.get(fieldId)
+    if (
+      hit &&
+      hit.maxJobId === maxJobId &&
+      hit.computedAtMs === computedAtMs &&
+      hit.fromMs === from.getTime() &&
+      hit.toMs === to.getTime()
+    ) {
+      // Most recently used last.
+      cache.delete(fieldId)
+      cache.set(fieldId, hit)
+      return hit.hours
+    }
+    const hours = (await store.repos.forecasts.hours([fieldId], from, to)).map(toForecastHour)
+    cache.delete(fieldId)
+    cache.set(fieldId, { maxJobId, computedAtMs, fromMs: from.getTime(), toMs: to.getTime(), hours })
+    if (cache.size > HOURS_CACHE_SIZE) cache.delete(cache.keys().next().value!)
+    return hours
+  }
+
+  /** The work types the hours carry (all active ones when there are no hours), in display order. */
+  function namesFor(hours: ForecastHour[], all: WorkTypeRow[]): Array<{ id: number; name: string }> {
     const used = new Set<string>()
     for (const h of hours) for (const id of Object.keys(h.workTypes)) used.add(id)
-    const all = await store.repos.workTypes.list()
     return all.filter((w) => used.has(String(w.id)) || (used.size === 0 && w.active)).map((w) => ({ id: w.id, name: w.name }))
+  }
+
+  async function workTypeNames(hours: ForecastHour[]): Promise<Array<{ id: number; name: string }>> {
+    return namesFor(hours, await store.repos.workTypes.list())
   }
 
   function range(query: ForecastQuery, meta: StoredForecastMeta | undefined, nowMs: number): { from: Date; to: Date } {
@@ -93,17 +136,20 @@ export function createForecastsService(ctx: ServiceContext) {
 
   return {
     async field(user: SessionUser, fieldId: number, query: ForecastQuery): Promise<FieldForecastResponse> {
-      const field = (await store.repos.forecasts.fieldBasics([fieldId])).get(fieldId)
-      if (!field || !canSeeFarm(user, field.farmId)) throw notFound('The field')
       const nowMs = Date.now()
-      const [metaMap, pendingMap] = await Promise.all([
+      // Independent reads in parallel; nothing is returned before the visibility check.
+      const [basics, metaMap, pendingMap, allWorkTypes] = await Promise.all([
+        store.repos.forecasts.fieldBasics([fieldId]),
         store.repos.forecasts.storedMeta([fieldId]),
         store.repos.jobs.pendingForFields([fieldId]),
+        store.repos.workTypes.list(),
       ])
+      const field = basics.get(fieldId)
+      if (!field || !canSeeFarm(user, field.farmId)) throw notFound('The field')
       const meta = metaMap.get(fieldId)
       const { from, to } = range(query, meta, nowMs)
-      const hours = (await store.repos.forecasts.hours([fieldId], from, to)).map(toForecastHour)
-      return { ...assemble(field, meta, pendingMap.get(fieldId), hours, nowMs), workTypes: await workTypeNames(hours) }
+      const hours = await hoursOf(fieldId, meta, from, to)
+      return { ...assemble(field, meta, pendingMap.get(fieldId), hours, nowMs), workTypes: namesFor(hours, allWorkTypes) }
     },
 
     async farm(user: SessionUser, farmId: number, query: ForecastQuery): Promise<FarmForecastResponse> {
