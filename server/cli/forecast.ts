@@ -137,11 +137,28 @@ function fieldCsv(hours: HourAggregate[]): string {
   return [head.join(','), ...rows].join('\n') + '\n'
 }
 
+/**
+ * `--lon -93.6` is how people write western longitudes; node's parseArgs would read -93.6
+ * as an option, so a negative number after an option is joined to it (`--lon=-93.6`).
+ */
+export function joinNegativeValues(argv: readonly string[]): string[] {
+  const out: string[] = []
+  for (let i = 0; i < argv.length; i++) {
+    const arg = argv[i]
+    const next = argv[i + 1]
+    if (/^--[a-z-]+$/.test(arg) && next !== undefined && /^-(\d|\.\d)/.test(next)) {
+      out.push(`${arg}=${next}`)
+      i++
+    } else out.push(arg)
+  }
+  return out
+}
+
 async function main(argv: string[]): Promise<void> {
   let values: Record<string, string | string[] | boolean | undefined>
   try {
     values = parseArgs({
-      args: argv,
+      args: joinNegativeValues(argv),
       strict: true,
       allowPositionals: false,
       options: {

@@ -56,6 +56,16 @@ describe('forecast CLI, point mode', () => {
   })
 })
 
+describe('forecast CLI, western and southern coordinates', () => {
+  it('takes a negative --lat/--lon as a value, the way people write them', () => {
+    const spaced = forecast(['--orbits', 'nominal:gps', '--lat', '-33.9', '--lon', '-93.6', '--start', '2026-12-02T06:00:00Z', '--hours', '1', '--step', '30'])
+    const joined = forecast(['--orbits', 'nominal:gps', '--lat=-33.9', '--lon=-93.6', '--start', '2026-12-02T06:00:00Z', '--hours', '1', '--step', '30'])
+    expect(spaced.status).toBe(0)
+    expect(spaced.stdout).toBe(joined.stdout)
+    expect(JSON.parse(spaced.stdout).epochs).toHaveLength(2)
+  })
+})
+
 describe('forecast CLI, field mode', () => {
   it('prints { hours: [...] } with the hourly aggregates', () => {
     const r = forecast([
