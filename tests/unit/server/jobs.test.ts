@@ -119,7 +119,7 @@ describe('chunked engine runs', () => {
     expect(chunked.hours).toHaveLength(30)
     expect(chunked.hours).toEqual(whole.hours)
     // The outage of G07 from hour 10 to 12 is in the task.
-    expect(task.outages.map((o) => o.satId)).toEqual(['G07'])
+    expect(task.outages?.map((o) => o.satId)).toEqual(['G07'])
   })
 })
 
