@@ -9,7 +9,7 @@ import { createStore } from '../server/db/repositories/index.ts'
 import { seedFields } from './fields.ts'
 import { seedPasses } from './passes.ts'
 import { seedPlanning } from './planning.ts'
-import { DEMO_PASSWORD, demoBusinessName, demoFarms, demoUsers } from './scenario.ts'
+import { DEMO_PASSWORD, demoBusinessName, demoConstellations, demoFarms, demoUsers } from './scenario.ts'
 
 export interface SeedResult {
   seeded: boolean
@@ -53,6 +53,10 @@ async function seedPeopleAndFarms(db: Database): Promise<SeedResult> {
         user.farms.map((key) => farmIds.get(key)!),
       )
     }
+    // The demo contractor's RTK receivers track GPS and GLONASS only, so the vertical work
+    // types open and close through the day; the office can switch Galileo and BeiDou on
+    // in Orbits and see the week clear up.
+    for (const { system, enabled } of demoConstellations) await repos.orbits.upsertActive({ system, orbitSetId: null, enabled })
     return { seeded: true, users: demoUsers.length, farms: demoFarms.length }
   })
 }

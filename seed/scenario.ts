@@ -73,3 +73,11 @@ export const demoUsers: DemoUser[] = [
     farms: ['south', 'valley'],
   },
 ]
+
+/** Constellations the demo contractor's receivers track (nominal orbit data for each). */
+export const demoConstellations: Array<{ system: 'GPS' | 'GLONASS' | 'Galileo' | 'BeiDou'; enabled: boolean }> = [
+  { system: 'GPS', enabled: true },
+  { system: 'GLONASS', enabled: true },
+  { system: 'Galileo', enabled: false },
+  { system: 'BeiDou', enabled: false },
+]
