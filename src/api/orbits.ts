@@ -37,6 +37,7 @@ export const getActiveOrbits = () => http.get<ActiveOrbitState[] | { items: Acti
 export const setActiveOrbits = (active: ActiveOrbit[]) =>
   http.put<ActiveOrbitState[] | { items: ActiveOrbitState[] }>('/orbits/active', active).then(itemsOf)
 
-export const runOrbitFeed = () => http.post<OrbitFeedStatus>('/orbit-feed/run')
+/** Runs the feed now; a failed run answers 502 with the reason. */
+export const runOrbitFeed = () => http.post<{ ok: boolean; orbitSetId: number; name: string; satelliteCount: number; message?: string }>('/orbit-feed/run')
 
 export const getOrbitFeedStatus = () => http.get<OrbitFeedStatus>('/orbit-feed/status', undefined, { quiet: [404] })

@@ -472,7 +472,7 @@ export function useFarmMap(options: FarmMapOptions) {
     map?.getView().animate({ center: fromLonLat(lonLat), zoom, duration: 200 })
   }
 
-  function setPreview(items: { index: number; geometry: unknown; label: string; checked: boolean; problems: string[] }[]): void {
+  function setPreview(items: { index: number; geometry: unknown; label: string; checked: boolean; problems: string[] }[], fit = false): void {
     previewSource.clear()
     for (const item of items) {
       if (!item.geometry) continue
@@ -480,6 +480,11 @@ export function useFarmMap(options: FarmMapOptions) {
       feature.setId(`preview:${item.index}`)
       feature.setProperties({ label: item.label, checked: item.checked, problems: item.problems })
       previewSource.addFeature(feature)
+    }
+    // Show what the file holds: fit the view to it (the upload panel covers the right side).
+    const extent = previewSource.getExtent()
+    if (fit && map && previewSource.getFeatures().length > 0 && extent && !isEmpty(extent)) {
+      map.getView().fit(extent, { padding: [60, 160, 60, 60], maxZoom: 17, duration: 200 })
     }
   }
 

@@ -66,6 +66,8 @@ describe('Fields: drawing, areas and the live sky check', () => {
     await page.goto(`${server.baseUrl}/fields`)
     await page.getByRole('heading', { name: 'Fields', level: 1 }).waitFor()
     await page.getByTestId('farm-map').locator('canvas').first().waitFor()
+    await page.waitForTimeout(800)
+    await screenshot(page, 'fields-farm-loaded')
 
     await page.getByTestId('goto').fill(`${lat.toFixed(4)}, ${lon}`)
     await page.getByTestId('goto').press('Enter')
@@ -190,4 +192,39 @@ describe('Fields: drawing, areas and the live sky check', () => {
     const list = await apiFromPage(page, `/api/farms/${farmId}/fields`)
     expect((list.body as { name: string }[]).some((f) => f.name === `Bow tie ${stamp}`)).toBe(false)
   }, 90_000)
+
+  it('uploads a GeoJSON file, previews its areas, names them from an attribute and adds them', async () => {
+    const { page } = browser
+    // Two invented rectangles south of the drawn field, with a name attribute.
+    const rect = (south: number, name: string) => ({
+      type: 'Feature',
+      properties: { FIELD_NAME: name, acres: 40 },
+      geometry: {
+        type: 'Polygon',
+        coordinates: [[[lon - 0.004, south], [lon + 0.002, south], [lon + 0.002, south + 0.003], [lon - 0.004, south + 0.003], [lon - 0.004, south]]],
+      },
+    })
+    const names = [`South forty ${stamp}`, `Bottom ground ${stamp}`]
+    const file = { type: 'FeatureCollection', features: [rect(lat - 0.01, names[0]), rect(lat - 0.015, names[1])] }
+    // The refused bow tie is still open: throw it away, back to the table.
+    await page.getByTestId('field-editor').getByRole('button', { name: 'Throw away' }).click()
+    await page.getByTestId('fields-table').waitFor()
+    await page.getByTestId('open-import').click()
+    await page.getByTestId('import-file').setInputFiles({ name: 'fields.geojson', mimeType: 'application/geo+json', buffer: Buffer.from(JSON.stringify(file)) })
+    await page.getByTestId('import-read').click()
+    const list = page.getByTestId('import-features')
+    await list.locator('li').nth(1).waitFor()
+    expect(await list.locator('li').count()).toBe(2)
+    // Names come from the FIELD_NAME attribute.
+    expect(await list.locator('li').nth(0).locator('input[type="text"], input:not([type])').first().inputValue()).toBe(names[0])
+    await screenshot(page, 'fields-import-preview')
+    await page.getByTestId('import-create').click()
+    await page.locator('.ant-message').getByText('2 fields added').waitFor()
+    // The table finds them by name (the demo farm may hold more fields than one page).
+    for (const name of names) {
+      await page.getByRole('searchbox', { name: 'Search fields' }).or(page.getByLabel('Search fields')).first().fill(name)
+      await page.getByTestId('fields-table').getByText(name).waitFor()
+    }
+    await screenshot(page, 'fields-imported')
+  }, 60_000)
 })

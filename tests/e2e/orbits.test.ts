@@ -153,4 +153,13 @@ describe('Orbits: orbit sets, problems record by record', () => {
     await row.waitFor({ state: 'detached' })
     expect(pageErrors).toEqual([])
   }, 60_000)
+
+  it('fetches the daily feed on request and shows how it went', async () => {
+    const { page } = browser
+    const before = await page.getByTestId('feed-last').textContent()
+    await page.getByTestId('feed-run').click()
+    await expect.poll(() => page.getByTestId('feed-last').textContent(), { timeout: 30_000 }).not.toBe(before)
+    expect(await page.getByTestId('feed-last').textContent()).toMatch(/fetched|failed/)
+    await screenshot(page, 'orbits-feed')
+  }, 60_000)
 })
