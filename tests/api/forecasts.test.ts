@@ -134,7 +134,8 @@ describe('recompute and read a field forecast', () => {
 })
 
 describe('changes queue recomputes', () => {
-  it('a taller tree line queues the fields of the farm, which then store a new version', async () => {
+  // Generous limits: other tests may have added many fields to this farm, and each is queued.
+  it('a taller tree line queues the fields of the farm, which then store a new version', { timeout: 300_000 }, async () => {
     const before = (await as.admin.get(`/api/fields/${northField.id}/forecast`)).body as FieldForecastResponse
     const treeLine = (await server.repos.obstructions.listByFarm(northField.farmId))[0]
     const patched = await as.contractor.patch(`/api/obstructions/${treeLine.id}`, { heightM: treeLine.heightM + 6 })
@@ -143,7 +144,7 @@ describe('changes queue recomputes', () => {
     const job = await until(async () => {
       const list = (await as.office.get(`/api/jobs?fieldId=${northField.id}&limit=5`)).body.items as Job[]
       return list.find((j) => j.reason === 'obstructions')
-    }, 'the recompute after the tree line change')
+    }, 'the recompute after the tree line change', 240_000)
     expect(['queued', 'running', 'done']).toContain(job.status)
     await jobs.runner!.idle()
     const after = (await as.admin.get(`/api/fields/${northField.id}/forecast`)).body as FieldForecastResponse
