@@ -86,14 +86,19 @@ export function createPlansService(ctx: ServiceContext) {
       return out
     },
 
-    async preview(user: SessionUser, input: { farmId: number; weekStart: string; note: string; units: UnitSystem; extraRecipients?: string[] }): Promise<PlanPreview> {
+    async preview(
+      user: SessionUser,
+      input: { farmId: number; weekStart: string; note: string; units: UnitSystem; recipient?: string; extraRecipients?: string[] },
+    ): Promise<PlanPreview> {
       staff(user)
       const plan = await composePlan(repos, input.farmId, input.weekStart, input.note)
       const recipients = await planRecipients(repos, input.farmId, input.extraRecipients ?? [])
       const latest = await repos.plans.latestRevision(input.farmId, input.weekStart)
-      // The preview's opt-out link is a real one, for the first recipient (or a sample address).
-      const sample = recipients.find((r) => r.units === input.units)?.email ?? recipients[0]?.email ?? 'recipient@example.test'
-      const fill = { units: input.units, optOutUrl: optOutUrl(config, input.farmId, sample) }
+      // As the chosen recipient gets it (their units, their opt-out link); without one, in the
+      // given units with the link of the first recipient in those units.
+      const chosen = recipients.find((r) => r.email === input.recipient)
+      const sample = chosen?.email ?? recipients.find((r) => r.units === input.units)?.email ?? recipients[0]?.email ?? 'recipient@example.test'
+      const fill = { units: chosen?.units ?? input.units, optOutUrl: optOutUrl(config, input.farmId, sample) }
       return {
         farmId: plan.farm.id,
         farmName: plan.farm.name,

@@ -23,6 +23,8 @@ export type PlanKey = z.infer<typeof planKeySchema>
 export const planPreviewSchema = planKeySchema.extend({
   note: z.string().max(PLAN_NOTE_MAX, `The note may have at most ${PLAN_NOTE_MAX} characters`).default(''),
   units: unitSystemSchema.default('metric'),
+  /** Preview as this recipient gets it: their units and their own opt-out link. */
+  recipient: z.string().trim().toLowerCase().max(254).optional(),
 })
 export type PlanPreviewInput = z.input<typeof planPreviewSchema>
 

@@ -146,6 +146,11 @@ describe('weekly plans', () => {
     )
     const metric = (await world.office.post('/api/plans/preview', { farmId, weekStart, units: 'metric' })).body as PlanPreview
     expect(metric.html).toContain('40 ha')
+    // As a given recipient: their units win, and the opt-out link is theirs.
+    const asImperial = (await world.office.post('/api/plans/preview', { farmId, weekStart, units: 'metric', recipient: imperialClient.email })).body as PlanPreview
+    expect(asImperial.text).toContain('(98.8 ac)')
+    const token = new URL(/https?:\/\/\S+\/api\/plans\/opt-out\?token=\S+/.exec(asImperial.text)![0]).searchParams.get('token')!
+    expect(Buffer.from(token.split('.')[1], 'base64url').toString()).toBe(imperialClient.email)
   })
 
   it('refuses a bad extra address, naming it', async () => {
