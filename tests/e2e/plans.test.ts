@@ -87,6 +87,27 @@ describe('plans: preview, send, log and mailbox', { timeout: 180_000 }, () => {
     expect(log.some((r) => r.recipient === demo.clientSouth)).toBe(false)
   })
 
+  it('sets the automatic weekly send in the farm time zone', async () => {
+    const { page } = browser
+    await page.getByTestId('plans-tabs').getByText('Automatic send and opt-outs').click()
+    const panel = page.getByTestId('plan-schedule')
+    await panel.waitFor()
+    await panel.getByTestId('plan-schedule-enabled').check()
+    const time = panel.getByTestId('plan-schedule-time')
+    await time.fill('7:00')
+    await panel.getByTestId('plan-schedule-save').click()
+    await panel.getByText('Give the time as HH:MM').waitFor()
+    await time.fill('07:00')
+    await panel.getByTestId('plan-schedule-save').click()
+    // Switched on after this week's Monday 07:00: the first automatic send is next Monday's.
+    await panel.getByText(/Next automatic send: Monday, \w+ \d+ at 07:00 C[SD]T/).waitFor()
+    await page.getByTestId('plan-opt-outs').getByText('Nobody has opted out.').waitFor()
+    await screenshot(page, 'plans-automatic')
+    await panel.getByTestId('plan-schedule-enabled').uncheck()
+    await panel.getByTestId('plan-schedule-save').click()
+    await panel.getByText('Automatic send is off.').waitFor()
+  })
+
   it('the plan is in the Mailbox with its .ics attachment', async () => {
     const { page } = browser
     await page.getByRole('navigation', { name: 'Main navigation' }).getByRole('link', { name: /Mailbox/ }).click()
