@@ -50,6 +50,10 @@ export async function enqueueJob(store: Store, job: NewJob, mode: EnqueueMode): 
   return result
 }
 
+/** Reasons of forecast jobs nobody is waiting for. */
+const BACKGROUND_REASONS = new Set<JobReason>(['nightly', 'start-up'])
+const USER_FIRST_MS = 10 * 60_000
+
 export interface ForecastRequest {
   fieldId: number
   farmId: number
@@ -74,6 +78,9 @@ export function enqueueForecast(store: Store, req: ForecastRequest, mode: 'super
       dedupeKey: forecastKey(req.fieldId),
       payload: { reason: req.reason, force: req.force ?? false },
       createdBy: req.createdBy ?? null,
+      // Jobs are claimed in runAfter order: what a person just changed or asked for goes
+      // ahead of the background refreshes (nightly, start-up check) already waiting.
+      runAfter: BACKGROUND_REASONS.has(req.reason) ? new Date() : new Date(Date.now() - USER_FIRST_MS),
     },
     mode,
   )
