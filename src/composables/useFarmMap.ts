@@ -101,8 +101,8 @@ export function useFarmMap(options: FarmMapOptions) {
   const markerSource = new VectorSource<MapFeature>()
 
   const selectedId = () => selected.value?.getId()
-  const fieldLayer = new VectorLayer({ source: fieldSource, style: fieldStyle(options.units, selectedId), zIndex: 10 })
-  const obstructionLayer = new VectorLayer({ source: obstructionSource, style: obstructionStyle(options.units, selectedId), zIndex: 20 })
+  const fieldLayer = new VectorLayer({ source: fieldSource, style: fieldStyle(options.units, selectedId), zIndex: 10, declutter: 'labels' })
+  const obstructionLayer = new VectorLayer({ source: obstructionSource, style: obstructionStyle(options.units, selectedId), zIndex: 20, declutter: 'labels' })
   const previewLayer = new VectorLayer({ source: previewSource, style: previewStyle, zIndex: 30 })
   const markerLayer = new VectorLayer({ source: markerSource, style: markerStyle, zIndex: 40 })
 

@@ -106,9 +106,11 @@ describe('Fields: drawing, areas and the live sky check', () => {
     expect(shownHa).not.toBeNull()
     expect(Math.abs(Number(shownHa![1].replace(/,/g, '')) - stored!.areaHa)).toBeLessThan(0.1)
 
-    // The table beside the map lists it once the editor is closed.
+    // The table beside the map lists it once the editor is closed (found by its name).
     await editor.getByRole('button', { name: 'Close' }).click()
+    await page.getByLabel('Search fields').first().fill(fieldName)
     await page.getByTestId('fields-table').getByText(fieldName).waitFor()
+    await page.getByLabel('Search fields').first().fill('')
   }, 90_000)
 
   it('draws a tree line beside the field and the sky check follows its height', async () => {
@@ -222,7 +224,7 @@ describe('Fields: drawing, areas and the live sky check', () => {
     await page.locator('.ant-message').getByText('2 fields added').waitFor()
     // The table finds them by name (the demo farm may hold more fields than one page).
     for (const name of names) {
-      await page.getByRole('searchbox', { name: 'Search fields' }).or(page.getByLabel('Search fields')).first().fill(name)
+      await page.getByLabel('Search fields').first().fill(name)
       await page.getByTestId('fields-table').getByText(name).waitFor()
     }
     await screenshot(page, 'fields-imported')

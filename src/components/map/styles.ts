@@ -17,6 +17,13 @@ export const obstructionColours: Record<ObstructionKind, { stroke: string; fill:
 
 const selectedStroke = '#1f3a6e'
 
+/** The larger side of a feature's extent in screen pixels. */
+function widthPx(feature: FeatureLike, resolution: number): number {
+  const e = feature.getGeometry()?.getExtent()
+  if (!e) return 0
+  return Math.max(e[2] - e[0], e[3] - e[1]) / resolution
+}
+
 function labelText(text: string, offsetY = 0): Text {
   return new Text({
     text,
@@ -30,16 +37,18 @@ function labelText(text: string, offsetY = 0): Text {
 
 /** Style of a field feature (properties: name, areaHa, dirty). */
 export function fieldStyle(units: () => UnitSystem, selectedId: () => string | number | undefined) {
-  return (feature: FeatureLike): Style[] => {
+  return (feature: FeatureLike, resolution: number): Style[] => {
     const selected = feature.getId() !== undefined && feature.getId() === selectedId()
     const name = (feature.get('name') as string | undefined) || 'New field'
+    // Labels only where the field is wide enough on screen to carry them.
+    const showLabel = selected || widthPx(feature, resolution) >= 70
     const areaHa = feature.get('areaHa') as number | undefined
     const text = areaHa !== undefined ? `${name}\n${formatArea(areaHa, units())}` : name
     return [
       new Style({
         fill: new Fill({ color: selected ? 'rgba(231, 215, 169, 0.55)' : 'rgba(43, 93, 74, 0.20)' }),
         stroke: new Stroke({ color: selected ? selectedStroke : '#2b5d4a', width: selected ? 3 : 2, lineDash: feature.get('dirty') ? [8, 5] : undefined }),
-        text: labelText(text),
+        text: showLabel ? labelText(text) : undefined,
         zIndex: selected ? 2 : 1,
       }),
     ]
@@ -48,13 +57,13 @@ export function fieldStyle(units: () => UnitSystem, selectedId: () => string | n
 
 /** Style of an obstruction feature (properties: kind, heightM). */
 export function obstructionStyle(units: () => UnitSystem, selectedId: () => string | number | undefined) {
-  return (feature: FeatureLike): Style[] => {
+  return (feature: FeatureLike, resolution: number): Style[] => {
     const kind = (feature.get('kind') as ObstructionKind | undefined) ?? 'deciduous'
     const colours = obstructionColours[kind] ?? obstructionColours.deciduous
     const selected = feature.getId() !== undefined && feature.getId() === selectedId()
     const isLine = feature.getGeometry()?.getType() === 'LineString'
     const heightM = Number(feature.get('heightM'))
-    const text = Number.isFinite(heightM) ? formatHeight(heightM, units()) : ''
+    const text = Number.isFinite(heightM) && (selected || widthPx(feature, resolution) >= 24) ? formatHeight(heightM, units()) : ''
     const styles: Style[] = []
     if (selected) {
       styles.push(new Style({ stroke: new Stroke({ color: selectedStroke, width: isLine ? 12 : 5 }), zIndex: 3 }))
