@@ -5,6 +5,8 @@
  * satellites and a large share of the field.
  */
 import type { UnitSystem } from '@shared/schemas'
+import type { ServiceLevel, WorkType } from '@shared/schemas/planning'
+import { dopLimits } from './chartSeries'
 import type { ForecastHour } from '@shared/schemas/forecast'
 import { errorUnit, formatDop, formatErrorM, formatShare, type ErrorUnit } from './units'
 
@@ -132,13 +134,79 @@ export function rampPosition(scale: FigureScale, value: number | null): number |
   return scale.figure.higherIsBetter ? 1 - clamped : clamped
 }
 
-/** A figure's value as text in the user's units. */
-export function formatFigure(figure: FigureDef, value: number | null, units: UnitSystem, unit?: ErrorUnit | null): string {
+/**
+ * A figure's value as text in the user's units; `extraDigits` adds decimals where a
+ * legend's neighbouring ticks would otherwise read the same.
+ */
+export function formatFigure(figure: FigureDef, value: number | null, units: UnitSystem, unit?: ErrorUnit | null, extraDigits = 0): string {
   if (value === null || !Number.isFinite(value)) return figure.key === 'share' ? '—' : 'no fix'
-  if (figure.isError) return formatErrorM(value, units, unit ?? undefined)
+  if (figure.isError) {
+    const u = unit ?? errorUnit(value, units)
+    return formatErrorM(value, units, { ...u, digits: u.digits + extraDigits })
+  }
   if (figure.key === 'share') return formatShare(value)
   if (figure.key === 'sats') return String(Math.round(value))
-  return formatDop(value)
+  return extraDigits > 0 ? value.toFixed(2 + extraDigits) : formatDop(value)
+}
+
+/** What the chosen work type asks of a figure, and how many of the hours shown fall short. */
+export interface FigureLimit {
+  /** e.g. "HDOP at most 2.08" */
+  need: string
+  failing: number
+  total: number
+}
+
+/**
+ * The work type's limit on a figure (translated to DOP for DOP figures) and the hours
+ * shown whose value misses it (no fix counts as missing it).
+ * @example figureLimit(figures.hdop, hours, stripTill, levels, 'metric') // -> { need: 'HDOP at most 2.08', failing: 0, total: 160 }
+ */
+export function figureLimit(
+  figure: FigureDef,
+  hours: readonly ForecastHour[],
+  workType: WorkType | null,
+  serviceLevels: readonly ServiceLevel[],
+  units: UnitSystem,
+): FigureLimit | null {
+  if (!workType) return null
+  const dop = dopLimits(workType, serviceLevels)
+  let limit: number | null = null
+  let need = ''
+  switch (figure.key) {
+    case 'hdop':
+      limit = dop.hdop
+      need = limit === null ? '' : `HDOP at most ${limit.toFixed(2)}`
+      break
+    case 'vdop':
+      limit = dop.vdop
+      need = limit === null ? '' : `VDOP at most ${limit.toFixed(2)}`
+      break
+    case 'h95':
+      limit = workType.maxH95M
+      need = `a horizontal error at 95 % of at most ${formatErrorM(limit, units)}`
+      break
+    case 'v95':
+      limit = workType.maxV95M
+      need = limit === null ? '' : `a vertical error at 95 % of at most ${formatErrorM(limit, units)}`
+      break
+    case 'sats':
+      limit = workType.minSats
+      need = `at least ${limit} satellites`
+      break
+    case 'share':
+      limit = workType.requiredShare
+      need = `at least ${formatShare(limit)} of the field`
+      break
+  }
+  if (limit === null) return null
+  let failing = 0
+  for (const h of hours) {
+    const v = figure.value(h, workType.id)
+    const ok = v !== null && Number.isFinite(v) && (figure.higherIsBetter ? v >= limit : v <= limit)
+    if (!ok) failing++
+  }
+  return { need, failing, total: hours.length }
 }
 
 /** Evenly spaced legend ticks (values) from min to max. */

@@ -7,7 +7,7 @@ import type { ForecastHour } from '@shared/schemas/forecast'
 import { chartData, dopLimits } from '@/lib/chartSeries'
 import { cividis, cividisRgb, textOnCividis } from '@/lib/cividis'
 import { farmLocalToUtcIso, formatFarmSpan, localDays, mondayOf, offsetLabel, utcToFarmLocal } from '@/lib/farmTime'
-import { figures, figureScale, formatFigure, rampPosition, scaleOfValues } from '@/lib/outlookFigures'
+import { figureLimit, figures, figureScale, formatFigure, rampPosition, scaleOfValues } from '@/lib/outlookFigures'
 import { errorUnit, formatArea, formatDuration, formatErrorM, formatShare } from '@/lib/units'
 
 describe('cividis ramp', () => {
@@ -223,5 +223,24 @@ describe('chart limits', () => {
     expect(errors.lines[0].points[0][1]).toBeCloseTo(2.2, 6)
     const sats = chartData('sats', hours, tile, [rtk], 'metric')
     expect(sats.lines[0].limits).toEqual([{ name: 'Minimum', value: 7 }])
+  })
+
+  it('counts the hours shown that miss the work type on a figure, no fix included', () => {
+    const hours = [hour({ hdopMax: 1.2 }), hour({ hdopMax: 2.5 }), hour({ hdopMax: null })]
+    expect(figureLimit(figures.hdop, hours, tile, [rtk], 'metric')).toEqual({ need: 'HDOP at most 2.08', failing: 2, total: 3 })
+    expect(figureLimit(figures.sats, [hour({ satsMin: 6 }), hour({ satsMin: 9 })], tile, [rtk], 'metric')).toEqual({
+      need: 'at least 7 satellites',
+      failing: 1,
+      total: 2,
+    })
+    expect(figureLimit(figures.v95, hours, { ...tile, maxV95M: null }, [rtk], 'metric')).toBeNull()
+    expect(figureLimit(figures.h95, hours, tile, [rtk], 'imperial')!.need).toBe('a horizontal error at 95 % of at most 2 in')
+  })
+
+  it('adds decimals when asked, so that close legend ticks differ', () => {
+    expect(formatFigure(figures.hdop, 0.5234, 'metric', null, 1)).toBe('0.523')
+    // 0.0152 m = 0.598 in
+    expect(formatFigure(figures.h95, 0.0152, 'imperial', errorUnit(0.02, 'imperial'))).toBe('0.6 in')
+    expect(formatFigure(figures.h95, 0.0152, 'imperial', errorUnit(0.02, 'imperial'), 2)).toBe('0.598 in')
   })
 })
