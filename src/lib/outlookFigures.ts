@@ -99,6 +99,12 @@ export function figureScale(figure: FigureDef, hours: Iterable<ForecastHour>, wo
   return scaleOfValues(figure, values, units)
 }
 
+/**
+ * The smallest range a scale spans: 0.05 in DOP, 2 mm in expected error, 2 satellites
+ * (a judgement of what is worth a colour step, not a published figure).
+ */
+const minimumSpan: Record<FigureKey, number> = { hdop: 0.05, vdop: 0.05, h95: 0.002, v95: 0.002, sats: 2, share: 1 }
+
 /** The scale of a figure over any list of values (nulls and non-finite values are skipped). */
 export function scaleOfValues(figure: FigureDef, values: Iterable<number | null>, units: UnitSystem): FigureScale {
   let min = Infinity
@@ -115,10 +121,12 @@ export function scaleOfValues(figure: FigureDef, values: Iterable<number | null>
   if (!Number.isFinite(min)) {
     min = 0
     max = 1
-  } else if (max - min < 1e-9) {
-    const pad = Math.max(Math.abs(max) * 0.1, figure.key === 'sats' ? 1 : 0.01)
-    min = Math.max(0, min - pad)
-    max = max + pad
+  } else if (max - min < minimumSpan[figure.key]) {
+    // Differences below what matters in the field are not spread over the whole ramp:
+    // nearly equal values get nearly equal (middle) colours.
+    const mid = (max + min) / 2
+    min = Math.max(0, mid - minimumSpan[figure.key] / 2)
+    max = min + minimumSpan[figure.key]
   }
   return { figure, min, max, unit: figure.isError ? errorUnit(max, units) : null }
 }

@@ -275,4 +275,14 @@ describe("Outlook: the farm client's view", () => {
       await page.setViewportSize({ width: 1280, height: 800 })
     }
   })
+
+  it('cleans up: the pass booked by the contractor is cancelled again', async () => {
+    const { page } = browser
+    await browser.context.clearCookies()
+    await signIn(page, server.baseUrl, demo.contractor)
+    const result = await postFromPage(page, `/api/passes/${bookedPass.id}/cancel`)
+    expect(result.status).toBe(200)
+    expect((result.body as Pass).status).toBe('cancelled')
+    await signOut(page)
+  })
 })

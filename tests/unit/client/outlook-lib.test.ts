@@ -152,6 +152,14 @@ describe('figures on the ramp', () => {
     expect(formatFigure(figures.share, 0.97, 'metric')).toBe('97 %')
   })
 
+  it('spreads only differences that matter over the ramp', () => {
+    // 0.1 mm apart: both land in the middle, not at the two ends.
+    const scale = scaleOfValues(figures.h95, [0.01427, 0.01437], 'imperial')
+    expect(scale.max - scale.min).toBeCloseTo(0.002, 9)
+    expect(rampPosition(scale, 0.01427)).toBeGreaterThan(0.4)
+    expect(rampPosition(scale, 0.01437)).toBeLessThan(0.6)
+  })
+
   it('widens a flat scale and skips hours without a fix', () => {
     const scale = scaleOfValues(figures.hdop, [1.2, null, 1.2, Number.NaN], 'metric')
     expect(scale.min).toBeLessThan(1.2)
