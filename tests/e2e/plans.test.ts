@@ -30,7 +30,10 @@ describe('plans: preview, send, log and mailbox', { timeout: 180_000 }, () => {
     await signIn(page, server.baseUrl, demo.office)
     await page.getByRole('navigation', { name: 'Main navigation' }).getByRole('link', { name: /Plans/ }).click()
     await page.getByRole('heading', { name: 'Plans', level: 1 }).waitFor()
-    await page.getByTestId('plans-farm').getByText(farmName).waitFor()
+    // Other suites may have added farms that sort first: choose the demo farm by name.
+    await page.getByTestId('plans-farm').click()
+    await page.locator('.ant-select-dropdown:not(.ant-select-dropdown-hidden) .ant-select-item-option', { hasText: farmName }).first().click()
+    await page.getByTestId('plans-farm').locator('.ant-select-selection-item', { hasText: farmName }).waitFor()
     await page.getByPlaceholder('For example: seed for the east fields').fill(note)
     const mail = page.frameLocator('[data-testid="plan-preview-html"]')
     await mail.getByText(note).waitFor()
