@@ -7,7 +7,7 @@
 import { forecastField, skyView } from '../../shared/precision/index.ts'
 import { HOUR_MS, floorHour } from '../../shared/planning/index.ts'
 import type { SessionUser } from '../../shared/schemas/auth.ts'
-import type { HourDetail, HourDetailPoint, HourWorkState, StoredHourFigures } from '../../shared/schemas/passes.ts'
+import type { HourDetail, HourDetailPoint, StoredHourFigures } from '../../shared/schemas/passes.ts'
 import { assertFarmVisible } from '../auth/access.ts'
 import type { ForecastHourRow } from '../db/schema-planning.ts'
 import { badRequest, notFound } from '../http/errors.ts'
@@ -15,33 +15,17 @@ import { engineSettings } from '../jobs/handlers.ts'
 import { engineWorkTypes, obstructionCollection, outagesInWindow } from '../jobs/inputs.ts'
 import { loadOrbitInputs } from '../jobs/orbitInputs.ts'
 import type { ServiceContext } from './context.ts'
+import { toForecastHour } from './forecasts.ts'
 
 /** How far from now an hour's detail may be asked for (the engine can compute any hour, but pages show the week). */
 const MAX_DISTANCE_MS = 60 * 24 * HOUR_MS
 
 function storedFigures(row: ForecastHourRow, names: Map<number, string>): StoredHourFigures {
-  let work: Record<string, { share: number; shareN1: number; state: HourWorkState['state'] }> = {}
-  try {
-    work = JSON.parse(row.workJson) as typeof work
-  } catch {
-    work = {}
-  }
+  const { time, workTypes, ...figures } = toForecastHour(row)
   return {
-    hourStart: row.hourStart.toISOString(),
-    satsMin: row.satsMin,
-    satsMedian: row.satsMedian,
-    hdopMedian: row.hdopMedian,
-    hdopMax: row.hdopMax,
-    vdopMedian: row.vdopMedian,
-    vdopMax: row.vdopMax,
-    pdopMax: row.pdopMax,
-    n1HdopMax: row.n1HdopMax,
-    h95MedianM: row.h95MedianM,
-    h95MaxM: row.h95MaxM,
-    v95MedianM: row.v95MedianM,
-    v95MaxM: row.v95MaxM,
-    noFixShare: row.noFixShare,
-    workTypes: Object.entries(work)
+    hourStart: time,
+    ...figures,
+    workTypes: Object.entries(workTypes)
       .filter(([id]) => names.has(Number(id)))
       .map(([id, v]) => ({ workTypeId: Number(id), workTypeName: names.get(Number(id))!, share: v.share, shareN1: v.shareN1, state: v.state })),
     orbitSummary: row.orbitSummary,
