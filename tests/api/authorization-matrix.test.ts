@@ -372,6 +372,11 @@ beforeAll(async () => {
 })
 
 afterAll(async () => {
+  // The throwaway fields would otherwise wait in every later server's forecast queue.
+  if (fixtures) {
+    const repos = fixtures.server.repos.fields
+    for (const field of await repos.listAll()) if (field.name.startsWith('Matrix field ')) await repos.delete(field.id)
+  }
   await fixtures?.server.close()
 })
 

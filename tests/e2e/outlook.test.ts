@@ -12,7 +12,7 @@ import type { FarmForecastResponse } from '@shared/schemas/forecast'
 import type { Field } from '@shared/schemas/fields'
 import type { Pass } from '@shared/schemas/passes'
 import type { WorkType } from '@shared/schemas/planning'
-import { apiFromPage, artifactsDir, demo, screenshot, signIn, signOut, startBrowser, startServer, type RunningBrowser, type RunningServer } from './support'
+import { apiFromPage, artifactsDir, demo, postFromPage, screenshot, signIn, signOut, startBrowser, startServer, waitForForecast, type RunningBrowser, type RunningServer } from './support'
 
 let server: RunningServer
 let browser: RunningBrowser
@@ -26,48 +26,6 @@ afterAll(async () => {
   await browser?.close()
   await server?.stop()
 })
-
-/** POST from inside the page (session cookie and same origin), JSON in and out. */
-async function postFromPage(page: Page, path: string, body: unknown = {}): Promise<{ status: number; body: unknown }> {
-  return page.evaluate(
-    async ([url, payload]) => {
-      const response = await fetch(url as string, {
-        method: 'POST',
-        credentials: 'same-origin',
-        headers: { 'Content-Type': 'application/json', Accept: 'application/json' },
-        body: JSON.stringify(payload),
-      })
-      let json: unknown = null
-      try {
-        json = await response.json()
-      } catch {
-        json = null
-      }
-      return { status: response.status, body: json }
-    },
-    [path, body] as const,
-  )
-}
-
-/** Waits until the field's week is stored and no recompute of it is pending. */
-async function waitForForecast(page: Page, farmId: number, fieldId: number): Promise<FarmForecastResponse> {
-  const deadline = Date.now() + 240_000
-  let asked = false
-  for (;;) {
-    const { status, body } = await apiFromPage(page, `/api/farms/${farmId}/forecast`)
-    expect(status).toBe(200)
-    const farm = body as FarmForecastResponse
-    const field = farm.fields.find((f) => f.fieldId === fieldId)
-    if (field && field.hours.length >= 24 * 6 && !field.pendingJob) return farm
-    if (!asked && field && !field.pendingJob) {
-      const queued = await postFromPage(page, `/api/fields/${fieldId}/recompute`)
-      expect(queued.status).toBe(202)
-      asked = true
-    }
-    if (Date.now() > deadline) throw new Error(`No stored forecast for field ${fieldId} after 4 minutes:\n${server.log().slice(-2000)}`)
-    await page.waitForTimeout(2000)
-  }
-}
 
 /** Chooses an option of an ant-design-vue select by its visible text. */
 async function choose(page: Page, testId: string, text: string): Promise<void> {
@@ -95,7 +53,7 @@ describe('Outlook: the contractor plans a strip-till pass', () => {
     otherFarmField = ((await apiFromPage(page, `/api/farms/${southFarmId}/fields`)).body as Field[])[0]
     expect(homeQuarter).toBeTruthy()
     expect(otherFarmField).toBeTruthy()
-    const forecast = await waitForForecast(page, northFarmId, homeQuarter.id)
+    const forecast = await waitForForecast(page, server, northFarmId, homeQuarter.id)
     const workTypes = (await apiFromPage(page, '/api/work-types')).body as WorkType[]
     const stripTill = workTypes.find((t) => t.name === 'Strip-till')!
 

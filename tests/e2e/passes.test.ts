@@ -10,7 +10,7 @@ import type { Field } from '@shared/schemas/fields'
 import type { Pass } from '@shared/schemas/passes'
 import type { Machine, WorkType } from '@shared/schemas/planning'
 import { estimateDurationMin } from '../../shared/planning/index.ts'
-import { apiFromPage, demo, screenshot, signIn, signOut, startBrowser, startServer, type RunningBrowser, type RunningServer } from './support'
+import { apiFromPage, demo, screenshot, signIn, signOut, startBrowser, startServer, waitForForecast, type RunningBrowser, type RunningServer } from './support'
 
 let server: RunningServer
 let browser: RunningBrowser
@@ -129,6 +129,8 @@ describe('Passes: the contractor schedules crews', () => {
 
   it('finds a window and books it from the Passes page', async () => {
     const { page } = browser
+    // Windows come from the stored week, which the server may still be computing.
+    await waitForForecast(page, server, farmId, fields.find((f) => f.name === 'Schoolhouse Forty')!.id)
     const before = new Set((await passesOf(page)).map((p) => p.id))
     await page.getByTestId('open-finder').click()
     await page.getByTestId('window-finder').waitFor()
@@ -142,7 +144,7 @@ describe('Passes: the contractor schedules crews', () => {
     expect(created).toHaveLength(1)
     made.push(created[0].id)
     expect(created[0]).toMatchObject({ fieldName: 'Schoolhouse Forty', workTypeName: 'Spraying', machineId: null })
-  })
+  }, 300_000)
 
   it('changes a pass, marks it done and cancels another', async () => {
     const { page } = browser

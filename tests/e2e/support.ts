@@ -9,6 +9,7 @@ import { createServer } from 'node:net'
 import { tmpdir } from 'node:os'
 import { join, resolve } from 'node:path'
 import { chromium, type BrowserContext, type Page } from 'playwright-core'
+import type { FarmForecastResponse } from '@shared/schemas/forecast'
 
 export const root = resolve(import.meta.dirname, '..', '..')
 export const artifactsDir = join(root, 'tests', '.artifacts')
@@ -186,4 +187,51 @@ export async function apiFromPage(page: Page, path: string): Promise<{ status: n
     }
     return { status: response.status, body }
   }, path)
+}
+
+/** POST from inside the page (session cookie and same origin), JSON in and out. */
+export async function postFromPage(page: Page, path: string, body: unknown = {}): Promise<{ status: number; body: unknown }> {
+  return page.evaluate(
+    async ([url, payload]) => {
+      const response = await fetch(url as string, {
+        method: 'POST',
+        credentials: 'same-origin',
+        headers: { 'Content-Type': 'application/json', Accept: 'application/json' },
+        body: JSON.stringify(payload),
+      })
+      let json: unknown = null
+      try {
+        json = await response.json()
+      } catch {
+        json = null
+      }
+      return { status: response.status, body: json }
+    },
+    [path, body] as const,
+  )
+}
+
+/**
+ * Waits until the field's week is stored and no recompute of it is pending. The server's
+ * start-up sweep queues every field whose stored week is missing or stale, behind
+ * whatever earlier test files left; when the field has no job of its own, this asks for
+ * one (signed in as a role that may).
+ */
+export async function waitForForecast(page: Page, server: RunningServer, farmId: number, fieldId: number): Promise<FarmForecastResponse> {
+  const deadline = Date.now() + 240_000
+  let asked = false
+  for (;;) {
+    const { status, body } = await apiFromPage(page, `/api/farms/${farmId}/forecast`)
+    if (status !== 200) throw new Error(`GET /api/farms/${farmId}/forecast answered ${status}`)
+    const farm = body as FarmForecastResponse
+    const field = farm.fields.find((f) => f.fieldId === fieldId)
+    if (field && field.hours.length >= 24 * 6 && !field.pendingJob) return farm
+    if (!asked && field && !field.pendingJob) {
+      const queued = await postFromPage(page, `/api/fields/${fieldId}/recompute`)
+      if (queued.status !== 202) throw new Error(`POST /api/fields/${fieldId}/recompute answered ${queued.status}`)
+      asked = true
+    }
+    if (Date.now() > deadline) throw new Error(`No stored forecast for field ${fieldId} after 4 minutes:\n${server.log().slice(-2000)}`)
+    await page.waitForTimeout(2000)
+  }
 }
