@@ -272,6 +272,26 @@ export const forecastHours = mysqlTable(
   (t) => [primaryKey({ columns: [t.fieldId, t.hourStart] }), index('forecast_hours_hour_idx').on(t.hourStart)],
 )
 
+/**
+ * What a field's stored forecast holds, one row per field with stored hours: written in
+ * the same transaction as the hours (by the job that stores them, and by pruning), so the
+ * forecast read path and the staleness checks read one row instead of aggregating hours.
+ */
+export const fieldForecasts = mysqlTable('field_forecasts', {
+  fieldId: int('field_id')
+    .primaryKey()
+    .references(() => fields.id, { onDelete: 'cascade' }),
+  hours: int('hours').notNull(),
+  firstHour: at('first_hour').notNull(),
+  lastHour: at('last_hour').notNull(),
+  /** Lowest and highest inputs version among the hours (equal when stored by one job). */
+  minVersion: varchar('min_version', { length: 64 }).notNull(),
+  maxVersion: varchar('max_version', { length: 64 }).notNull(),
+  computedAt: at('computed_at').notNull(),
+  orbitSummary: varchar('orbit_summary', { length: 255 }).notNull().default(''),
+  maxJobId: bigint('max_job_id', { mode: 'number' }),
+})
+
 /** A booked pass: a field, a kind of work, a machine and crew, a start and a duration. */
 export const passes = mysqlTable(
   'passes',
@@ -403,6 +423,7 @@ export type OrbitSetRow = typeof orbitSets.$inferSelect
 export type OutageRow = typeof outages.$inferSelect
 export type JobRow = typeof jobs.$inferSelect
 export type ForecastHourRow = typeof forecastHours.$inferSelect
+export type FieldForecastRow = typeof fieldForecasts.$inferSelect
 export type PassRow = typeof passes.$inferSelect
 export type PlanRevisionRow = typeof planRevisions.$inferSelect
 export type PlanSendRow = typeof planSends.$inferSelect

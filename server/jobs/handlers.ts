@@ -152,7 +152,7 @@ export const nightlyRefreshHandler: JobHandler = async (ctx) => {
   const { store } = ctx
   const window = forecastWindow(Date.now())
   await enqueueJob(store, { kind: 'orbit-feed', dedupeKey: `orbit-feed:${dayOf(Date.now())}`, payload: { reason: 'nightly' }, maxAttempts: 4 }, 'once')
-  const pruned = await store.repos.forecasts.pruneBefore(new Date(window.startMs))
+  const pruned = await store.transaction((repos) => repos.forecasts.pruneBefore(new Date(window.startMs)))
   const prunedJobs = await store.repos.jobs.pruneFinished(new Date(Date.now() - 14 * 86_400_000))
   const fieldList = await store.repos.forecasts.fieldIds()
   let queued = 0

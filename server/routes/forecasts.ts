@@ -15,7 +15,14 @@ export function forecastRoutes(services: Services): Router {
   router.get('/fields/:id/forecast', requireAuth, async (req, res) => {
     const { id } = parse(idParamsSchema, req.params, 'address')
     const query = parse(forecastQuerySchema, req.query, 'query')
-    res.json(await services.forecasts.field(currentAuth(req).user, id, query))
+    const { body, etag } = await services.forecasts.fieldBody(currentAuth(req).user, id, query)
+    // Revalidated on every use: an unchanged week answers 304 without a body.
+    res.set('Cache-Control', 'private, no-cache').set('ETag', etag)
+    if (req.fresh) {
+      res.status(304).end()
+      return
+    }
+    res.type('json').send(body)
   })
 
   router.get('/farms/:id/forecast', requireAuth, async (req, res) => {

@@ -1,5 +1,6 @@
 // Stored field forecasts for the outlook: one field's hours, or every field of a farm
 // (the day view). Clients read only their own farms (404 otherwise).
+import { createHash } from 'node:crypto'
 import type { SessionUser } from '../../shared/schemas/auth.ts'
 import {
   forecastWindow,
@@ -53,45 +54,45 @@ export function isStale(meta: StoredForecastMeta | undefined, pending: JobRow | 
 }
 
 /**
- * Hours of recently read fields, parsed once. A stored forecast only changes when a job
- * replaces it, so an entry is used only while the field's newest job id, computed time
- * and the asked range still match what the database says (checked on every request, so
- * several server processes stay correct).
+ * Hours of recently read fields, parsed once and serialized once. A stored forecast only
+ * changes when a job replaces it, so an entry is used only while the field's newest job
+ * id, computed time and the asked range still match what the database says (checked on
+ * every request, so several server processes stay correct).
  */
 interface CachedHours {
-  maxJobId: number | null
-  computedAtMs: number | null
-  fromMs: number
-  toMs: number
+  /** job id, computed time and range the entry was made for */
+  key: string
   hours: ForecastHour[]
+  /** `hours` as JSON, reused by every response that carries them */
+  json: string
 }
 const HOURS_CACHE_SIZE = 200
+
+/** A field's forecast as the API sends it: the JSON body and a validator for it. */
+export interface FieldForecastBody {
+  body: string
+  etag: string
+}
 
 export function createForecastsService(ctx: ServiceContext) {
   const { store } = ctx
   const cache = new Map<number, CachedHours>()
 
-  async function hoursOf(fieldId: number, meta: StoredForecastMeta | undefined, from: Date, to: Date): Promise<ForecastHour[]> {
-    const maxJobId = meta?.maxJobId ?? null
-    const computedAtMs = meta?.computedAt?.getTime() ?? null
+  async function hoursOf(fieldId: number, meta: StoredForecastMeta | undefined, from: Date, to: Date): Promise<CachedHours> {
+    const key = `${meta?.maxJobId ?? '-'}/${meta?.computedAt?.getTime() ?? '-'}/${from.getTime()}/${to.getTime()}`
     const hit = cache.get(fieldId)
-    if (
-      hit &&
-      hit.maxJobId === maxJobId &&
-      hit.computedAtMs === computedAtMs &&
-      hit.fromMs === from.getTime() &&
-      hit.toMs === to.getTime()
-    ) {
+    if (hit && hit.key === key) {
       // Most recently used last.
       cache.delete(fieldId)
       cache.set(fieldId, hit)
-      return hit.hours
+      return hit
     }
     const hours = (await store.repos.forecasts.hours([fieldId], from, to)).map(toForecastHour)
+    const entry = { key, hours, json: JSON.stringify(hours) }
     cache.delete(fieldId)
-    cache.set(fieldId, { maxJobId, computedAtMs, fromMs: from.getTime(), toMs: to.getTime(), hours })
+    cache.set(fieldId, entry)
     if (cache.size > HOURS_CACHE_SIZE) cache.delete(cache.keys().next().value!)
-    return hours
+    return entry
   }
 
   /** The work types the hours carry (all active ones when there are no hours), in display order. */
@@ -116,9 +117,8 @@ export function createForecastsService(ctx: ServiceContext) {
     field: { id: number; name: string; farmId: number },
     meta: StoredForecastMeta | undefined,
     pending: JobRow | undefined,
-    hours: ForecastHour[],
     nowMs: number,
-  ): Omit<FieldForecastResponse, 'workTypes'> {
+  ): Omit<FieldForecastResponse, 'workTypes' | 'hours'> {
     return {
       fieldId: field.id,
       fieldName: field.name,
@@ -130,26 +130,41 @@ export function createForecastsService(ctx: ServiceContext) {
       stale: isStale(meta, pending, nowMs),
       pendingJob: pending ? { id: pending.id, status: pending.status as 'queued' | 'running', progress: pending.progress } : null,
       orbitSummary: meta?.orbitSummary ?? '',
-      hours,
     }
   }
 
+  /** One field's stored week without the hours' JSON: the response head and the cached hours. */
+  async function fieldParts(
+    user: SessionUser,
+    fieldId: number,
+    query: ForecastQuery,
+  ): Promise<{ head: Omit<FieldForecastResponse, 'hours'>; hours: CachedHours }> {
+    const nowMs = Date.now()
+    // Independent reads in parallel; nothing is returned before the visibility check.
+    const [found, pendingMap, allWorkTypes] = await Promise.all([
+      store.repos.forecasts.fieldWithMeta(fieldId),
+      store.repos.jobs.pendingForFields([fieldId]),
+      store.repos.workTypes.list(),
+    ])
+    if (!found || !canSeeFarm(user, found.field.farmId)) throw notFound('The field')
+    const { field, meta } = found
+    const { from, to } = range(query, meta, nowMs)
+    const hours = await hoursOf(fieldId, meta, from, to)
+    const head = { ...assemble(field, meta, pendingMap.get(fieldId), nowMs), workTypes: namesFor(hours.hours, allWorkTypes) }
+    return { head, hours }
+  }
+
   return {
-    async field(user: SessionUser, fieldId: number, query: ForecastQuery): Promise<FieldForecastResponse> {
-      const nowMs = Date.now()
-      // Independent reads in parallel; nothing is returned before the visibility check.
-      const [basics, metaMap, pendingMap, allWorkTypes] = await Promise.all([
-        store.repos.forecasts.fieldBasics([fieldId]),
-        store.repos.forecasts.storedMeta([fieldId]),
-        store.repos.jobs.pendingForFields([fieldId]),
-        store.repos.workTypes.list(),
-      ])
-      const field = basics.get(fieldId)
-      if (!field || !canSeeFarm(user, field.farmId)) throw notFound('The field')
-      const meta = metaMap.get(fieldId)
-      const { from, to } = range(query, meta, nowMs)
-      const hours = await hoursOf(fieldId, meta, from, to)
-      return { ...assemble(field, meta, pendingMap.get(fieldId), hours, nowMs), workTypes: namesFor(hours, allWorkTypes) }
+    /**
+     * One field's stored week (a FieldForecastResponse) as JSON: the stored hours are
+     * serialized once per stored version, and the ETag changes whenever the body does.
+     */
+    async fieldBody(user: SessionUser, fieldId: number, query: ForecastQuery): Promise<FieldForecastBody> {
+      const { head, hours } = await fieldParts(user, fieldId, query)
+      const headJson = JSON.stringify(head)
+      const body = `${headJson.slice(0, -1)},"hours":${hours.json}}`
+      const etag = `W/"${createHash('sha1').update(headJson).update(hours.key).digest('base64url')}"`
+      return { body, etag }
     },
 
     async farm(user: SessionUser, farmId: number, query: ForecastQuery): Promise<FarmForecastResponse> {
@@ -172,7 +187,7 @@ export function createForecastsService(ctx: ServiceContext) {
         farmId,
         from: from.toISOString(),
         to: to.toISOString(),
-        fields: fields.map((f) => assemble(f, metaMap.get(f.id), pendingMap.get(f.id), byField.get(f.id) ?? [], nowMs)),
+        fields: fields.map((f) => ({ ...assemble(f, metaMap.get(f.id), pendingMap.get(f.id), nowMs), hours: byField.get(f.id) ?? [] })),
         workTypes: await workTypeNames(all),
       }
     },

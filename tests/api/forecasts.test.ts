@@ -110,6 +110,24 @@ describe('recompute and read a field forecast', () => {
     expect(backwards.body.error.fields.to).toMatch(/before/)
   })
 
+  it('answers an unchanged week with 304 to a client that has it (RFC 9110 section 13.1.2, If-None-Match)', async () => {
+    const first = await as.clientNorth.get(`/api/fields/${northField.id}/forecast`)
+    expect(first.status).toBe(200)
+    const etag = first.headers.etag as string
+    expect(etag).toMatch(/^W\/".+"$/)
+    expect(first.headers['cache-control']).toBe('private, no-cache')
+    const again = await as.clientNorth.get(`/api/fields/${northField.id}/forecast`).set('If-None-Match', etag)
+    expect(again.status).toBe(304)
+    expect(again.text ?? '').toBe('')
+    // Another range is another body.
+    const window = forecastWindow(Date.now())
+    const part = await as.clientNorth
+      .get(`/api/fields/${northField.id}/forecast?from=${new Date(window.startMs).toISOString()}&to=${new Date(window.startMs + 3_600_000).toISOString()}`)
+      .set('If-None-Match', etag)
+    expect(part.status).toBe(200)
+    expect((part.body as FieldForecastResponse).hours).toHaveLength(1)
+  })
+
   it('lets clients read only the fields of their farms', async () => {
     expect((await as.clientSouth.get(`/api/fields/${northField.id}/forecast`)).status).toBe(404)
     expect((await as.clientSouth.get(`/api/farms/${northField.farmId}/forecast`)).status).toBe(404)
@@ -136,7 +154,8 @@ describe('recompute and read a field forecast', () => {
 describe('changes queue recomputes', () => {
   // Generous limits: other tests may have added many fields to this farm, and each is queued.
   it('a taller tree line queues the fields of the farm, which then store a new version', { timeout: 300_000 }, async () => {
-    const before = (await as.admin.get(`/api/fields/${northField.id}/forecast`)).body as FieldForecastResponse
+    const beforeRes = await as.admin.get(`/api/fields/${northField.id}/forecast`)
+    const before = beforeRes.body as FieldForecastResponse
     const treeLine = (await server.repos.obstructions.listByFarm(northField.farmId))[0]
     const patched = await as.contractor.patch(`/api/obstructions/${treeLine.id}`, { heightM: treeLine.heightM + 6 })
     expect(patched.status).toBe(200)
@@ -151,6 +170,10 @@ describe('changes queue recomputes', () => {
     expect(after.hours).toHaveLength(168)
     expect(after.inputsVersion).not.toBe(before.inputsVersion)
     expect(after.stale).toBe(false)
+    // The week a client holds is no longer current: a full answer, not 304.
+    const revalidated = await as.admin.get(`/api/fields/${northField.id}/forecast`).set('If-None-Match', beforeRes.headers.etag as string)
+    expect(revalidated.status).toBe(200)
+    expect((revalidated.body as FieldForecastResponse).inputsVersion).toBe(after.inputsVersion)
   })
 
   it('a recompute that finds the same inputs stores nothing new unless asked by hand', async () => {

@@ -1,10 +1,11 @@
 // Queries for forecast jobs and the stored forecast hours: the inputs of a field's forecast
 // (field, farm obstructions, active work types with their sigma), which fields a change
 // affects, and the per-field replacement of the stored hours in one transaction.
-import { and, asc, count, eq, getTableColumns, gte, inArray, lt, max, min, or, sql } from 'drizzle-orm'
+import { and, asc, count, eq, getTableColumns, gte, inArray, lt, max, or, sql } from 'drizzle-orm'
 import type { DbOrTx } from '../index.ts'
 import { farms } from '../schema.ts'
 import {
+  fieldForecasts,
   fields,
   forecastHours,
   obstructions,
@@ -37,6 +38,30 @@ const upsertSet = Object.fromEntries(
     .filter(([key]) => key !== 'fieldId' && key !== 'hourStart')
     .map(([key, column]) => [key, sql`VALUES(${sql.identifier(column.name)})`]),
 )
+
+/**
+ * Rewrites the field_forecasts rows of `fieldIds` from their stored hours (and removes the
+ * rows of fields with no hours left), in the caller's transaction.
+ */
+async function summarize(db: DbOrTx, fieldIds: number[]): Promise<void> {
+  const ids = sql.join(
+    fieldIds.map((id) => sql`${id}`),
+    sql`, `,
+  )
+  await db.execute(sql`
+    INSERT INTO field_forecasts (field_id, hours, first_hour, last_hour, min_version, max_version, computed_at, orbit_summary, max_job_id)
+    SELECT field_id, COUNT(*), MIN(hour_start), MAX(hour_start), MIN(inputs_version), MAX(inputs_version), MAX(computed_at), MAX(orbit_summary), MAX(job_id)
+    FROM forecast_hours WHERE field_id IN (${ids}) GROUP BY field_id
+    ON DUPLICATE KEY UPDATE hours = VALUES(hours), first_hour = VALUES(first_hour), last_hour = VALUES(last_hour),
+      min_version = VALUES(min_version), max_version = VALUES(max_version), computed_at = VALUES(computed_at),
+      orbit_summary = VALUES(orbit_summary), max_job_id = VALUES(max_job_id)`)
+  await db.delete(fieldForecasts).where(
+    and(
+      inArray(fieldForecasts.fieldId, fieldIds),
+      sql`NOT EXISTS (SELECT 1 FROM forecast_hours h WHERE h.field_id = ${fieldForecasts.fieldId})`,
+    ),
+  )
+}
 
 export function forecastsRepository(db: DbOrTx) {
   return {
@@ -115,6 +140,17 @@ export function forecastsRepository(db: DbOrTx) {
       return map
     },
 
+    /** A field's name and farm with what is stored of its forecast, in one lookup. */
+    async fieldWithMeta(fieldId: number): Promise<{ field: { id: number; name: string; farmId: number }; meta: StoredForecastMeta | undefined } | null> {
+      const [row] = await db
+        .select({ id: fields.id, name: fields.name, farmId: fields.farmId, meta: fieldForecasts })
+        .from(fields)
+        .leftJoin(fieldForecasts, eq(fieldForecasts.fieldId, fields.id))
+        .where(eq(fields.id, fieldId))
+        .limit(1)
+      return row ? { field: { id: row.id, name: row.name, farmId: row.farmId }, meta: row.meta ?? undefined } : null
+    },
+
     async fieldsOfFarm(farmId: number): Promise<Array<{ id: number; name: string; farmId: number }>> {
       return db
         .select({ id: fields.id, name: fields.name, farmId: fields.farmId })
@@ -128,21 +164,10 @@ export function forecastsRepository(db: DbOrTx) {
       const map = new Map<number, StoredForecastMeta>()
       if (fieldIds && fieldIds.length === 0) return map
       const rows = await db
-        .select({
-          fieldId: forecastHours.fieldId,
-          hours: count(),
-          firstHour: min(forecastHours.hourStart),
-          lastHour: max(forecastHours.hourStart),
-          minVersion: min(forecastHours.inputsVersion),
-          maxVersion: max(forecastHours.inputsVersion),
-          computedAt: max(forecastHours.computedAt),
-          orbitSummary: max(forecastHours.orbitSummary),
-          maxJobId: max(forecastHours.jobId),
-        })
-        .from(forecastHours)
-        .where(fieldIds ? inArray(forecastHours.fieldId, fieldIds) : undefined)
-        .groupBy(forecastHours.fieldId)
-      for (const r of rows) map.set(r.fieldId, { ...r, maxJobId: r.maxJobId === null ? null : Number(r.maxJobId) })
+        .select()
+        .from(fieldForecasts)
+        .where(fieldIds ? inArray(fieldForecasts.fieldId, fieldIds) : undefined)
+      for (const r of rows) map.set(r.fieldId, r)
       return map
     },
 
@@ -202,12 +227,22 @@ export function forecastsRepository(db: DbOrTx) {
       if (rows.length) {
         await db.insert(forecastHours).values(rows).onDuplicateKeyUpdate({ set: upsertSet })
       }
+      await summarize(db, [fieldId])
       return 'stored'
     },
 
-    /** Deletes stored hours that start before `before` (older than the window). */
+    /** Deletes stored hours that start before `before` (older than the window). Call inside a transaction. */
     async pruneBefore(before: Date): Promise<number> {
+      const gone = await db
+        .selectDistinct({ fieldId: forecastHours.fieldId })
+        .from(forecastHours)
+        .where(lt(forecastHours.hourStart, before))
+      if (gone.length === 0) return 0
       const [res] = await db.delete(forecastHours).where(lt(forecastHours.hourStart, before))
+      await summarize(
+        db,
+        gone.map((g) => g.fieldId),
+      )
       return res.affectedRows
     },
   }
