@@ -119,6 +119,8 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
     next()
   })
   api.use(systemRoutes(services))
+  // The most frequent read first: Express tries the routers in this order.
+  api.use(forecastRoutes(services))
   api.use('/auth', authRoutes(services, { ...defaultAuthRateLimits, ...deps.rateLimits }))
   api.use('/farms', farmRoutes(services))
   api.use('/users', userRoutes(services))
@@ -133,7 +135,6 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
   api.use('/work-types', workTypeRoutes(services))
   api.use('/machines', machineRoutes(services))
   api.use('/jobs', jobRoutes(services))
-  api.use(forecastRoutes(services))
   api.use(passRoutes(services))
   api.use(windowRoutes(services))
   api.use(hourDetailRoutes(services))

@@ -15,14 +15,23 @@ export function forecastRoutes(services: Services): Router {
   router.get('/fields/:id/forecast', requireAuth, async (req, res) => {
     const { id } = parse(idParamsSchema, req.params, 'address')
     const query = parse(forecastQuerySchema, req.query, 'query')
-    const { body, etag } = await services.forecasts.fieldBody(currentAuth(req).user, id, query)
+    const acceptsGzip = req.acceptsEncodings('gzip', 'identity') === 'gzip'
+    const { parts, etag, encoding } = await services.forecasts.fieldBody(currentAuth(req).user, id, query, acceptsGzip)
     // Revalidated on every use: an unchanged week answers 304 without a body.
-    res.set('Cache-Control', 'private, no-cache').set('ETag', etag)
+    res.set('Cache-Control', 'private, no-cache').set('ETag', etag).vary('Accept-Encoding')
+    if (encoding) res.set('Content-Encoding', encoding)
     if (req.fresh) {
       res.status(304).end()
       return
     }
-    res.type('json').send(body)
+    // The stored hours are one shared buffer: written as they are, not copied into one body.
+    res.type('json').set('Content-Length', String(parts.reduce((n, b) => n + b.length, 0)))
+    if (req.method === 'HEAD') {
+      res.end()
+      return
+    }
+    for (const part of parts.slice(0, -1)) res.write(part)
+    res.end(parts.at(-1))
   })
 
   router.get('/farms/:id/forecast', requireAuth, async (req, res) => {

@@ -1,6 +1,8 @@
 // Stored field forecasts for the outlook: one field's hours, or every field of a farm
 // (the day view). Clients read only their own farms (404 otherwise).
 import { createHash } from 'node:crypto'
+import { promisify } from 'node:util'
+import { gzip as zlibGzip } from 'node:zlib'
 import type { SessionUser } from '../../shared/schemas/auth.ts'
 import {
   forecastWindow,
@@ -12,7 +14,7 @@ import {
   type WorkTypeHour,
 } from '../../shared/schemas/forecast.ts'
 import { canSeeFarm } from '../auth/access.ts'
-import type { StoredForecastMeta } from '../db/repositories/forecasts.ts'
+import type { PendingForecastJob, StoredForecastMeta } from '../db/repositories/forecasts.ts'
 import type { ForecastHourRow, JobRow, WorkTypeRow } from '../db/schema-planning.ts'
 import { notFound } from '../http/errors.ts'
 import type { ServiceContext } from './context.ts'
@@ -46,7 +48,7 @@ export function toForecastHour(row: ForecastHourRow): ForecastHour {
 }
 
 /** Whether stored hours may not match the current inputs (see FieldForecastResponse.stale). */
-export function isStale(meta: StoredForecastMeta | undefined, pending: JobRow | undefined, nowMs: number): boolean {
+export function isStale(meta: StoredForecastMeta | undefined, pending: PendingForecastJob | JobRow | null | undefined, nowMs: number): boolean {
   if (pending) return true
   if (!meta || !meta.firstHour) return true
   const window = forecastWindow(nowMs, FORECAST_WINDOW_HOURS)
@@ -63,36 +65,66 @@ interface CachedHours {
   /** job id, computed time and range the entry was made for */
   key: string
   hours: ForecastHour[]
-  /** `hours` as JSON, reused by every response that carries them */
-  json: string
+  /** `hours` as UTF-8 JSON, written as is by every response that carries them */
+  json: Buffer
 }
 const HOURS_CACHE_SIZE = 200
+const closingBrace = Buffer.from('}')
 
-/** A field's forecast as the API sends it: the JSON body and a validator for it. */
+/** A field's forecast as the API sends it: the JSON body in parts and a validator for it. */
 export interface FieldForecastBody {
-  body: string
+  /** the body is these buffers one after the other */
+  parts: Buffer[]
   etag: string
+  /** set when `parts` holds the body gzip-compressed */
+  encoding?: 'gzip'
 }
+
+const gzip = promisify(zlibGzip)
 
 export function createForecastsService(ctx: ServiceContext) {
   const { store } = ctx
-  const cache = new Map<number, CachedHours>()
+  /**
+   * Per field the newest body gzip-compressed, keyed by its ETag: a week changes far less
+   * often than it is read, so each version is compressed once (on the libuv thread pool).
+   */
+  const gzipped = new Map<number, { etag: string; body: Promise<Buffer> }>()
+  /** Per field the newest entry, or the read of it under way (so concurrent misses read once). */
+  const cache = new Map<number, { key: string; entry: Promise<CachedHours> }>()
 
-  async function hoursOf(fieldId: number, meta: StoredForecastMeta | undefined, from: Date, to: Date): Promise<CachedHours> {
+  function hoursOf(fieldId: number, meta: StoredForecastMeta | undefined, from: Date, to: Date): Promise<CachedHours> {
     const key = `${meta?.maxJobId ?? '-'}/${meta?.computedAt?.getTime() ?? '-'}/${from.getTime()}/${to.getTime()}`
     const hit = cache.get(fieldId)
-    if (hit && hit.key === key) {
-      // Most recently used last.
-      cache.delete(fieldId)
-      cache.set(fieldId, hit)
-      return hit
-    }
-    const hours = (await store.repos.forecasts.hours([fieldId], from, to)).map(toForecastHour)
-    const entry = { key, hours, json: JSON.stringify(hours) }
+    // Most recently used last.
     cache.delete(fieldId)
-    cache.set(fieldId, entry)
+    if (hit && hit.key === key) {
+      cache.set(fieldId, hit)
+      return hit.entry
+    }
+    const entry = store.repos.forecasts.hours([fieldId], from, to).then((rows) => {
+      const hours = rows.map(toForecastHour)
+      return { key, hours, json: Buffer.from(JSON.stringify(hours)) }
+    })
+    cache.set(fieldId, { key, entry })
     if (cache.size > HOURS_CACHE_SIZE) cache.delete(cache.keys().next().value!)
+    // A failed read is not kept.
+    entry.catch(() => {
+      if (cache.get(fieldId)?.entry === entry) cache.delete(fieldId)
+    })
     return entry
+  }
+
+  /** The work types, read again only when their stamp (count, newest id, last change) moves. */
+  let workTypes: { stamp: string; rows: Promise<WorkTypeRow[]> } | null = null
+  function workTypesAt(stamp: string): Promise<WorkTypeRow[]> {
+    if (!workTypes || workTypes.stamp !== stamp) {
+      const entry = { stamp, rows: store.repos.workTypes.list() }
+      workTypes = entry
+      entry.rows.catch(() => {
+        if (workTypes === entry) workTypes = null
+      })
+    }
+    return workTypes.rows
   }
 
   /** The work types the hours carry (all active ones when there are no hours), in display order. */
@@ -116,7 +148,7 @@ export function createForecastsService(ctx: ServiceContext) {
   function assemble(
     field: { id: number; name: string; farmId: number },
     meta: StoredForecastMeta | undefined,
-    pending: JobRow | undefined,
+    pending: PendingForecastJob | JobRow | null | undefined,
     nowMs: number,
   ): Omit<FieldForecastResponse, 'workTypes' | 'hours'> {
     return {
@@ -141,16 +173,12 @@ export function createForecastsService(ctx: ServiceContext) {
   ): Promise<{ head: Omit<FieldForecastResponse, 'hours'>; hours: CachedHours }> {
     const nowMs = Date.now()
     // Independent reads in parallel; nothing is returned before the visibility check.
-    const [found, pendingMap, allWorkTypes] = await Promise.all([
-      store.repos.forecasts.fieldWithMeta(fieldId),
-      store.repos.jobs.pendingForFields([fieldId]),
-      store.repos.workTypes.list(),
-    ])
-    if (!found || !canSeeFarm(user, found.field.farmId)) throw notFound('The field')
-    const { field, meta } = found
+    const state = await store.repos.forecasts.readState(fieldId)
+    if (!state || !canSeeFarm(user, state.field.farmId)) throw notFound('The field')
+    const { field, meta, pending } = state
     const { from, to } = range(query, meta, nowMs)
-    const hours = await hoursOf(fieldId, meta, from, to)
-    const head = { ...assemble(field, meta, pendingMap.get(fieldId), nowMs), workTypes: namesFor(hours.hours, allWorkTypes) }
+    const [hours, allWorkTypes] = await Promise.all([hoursOf(fieldId, meta, from, to), workTypesAt(state.workTypesStamp)])
+    const head = { ...assemble(field, meta, pending, nowMs), workTypes: namesFor(hours.hours, allWorkTypes) }
     return { head, hours }
   }
 
@@ -159,12 +187,24 @@ export function createForecastsService(ctx: ServiceContext) {
      * One field's stored week (a FieldForecastResponse) as JSON: the stored hours are
      * serialized once per stored version, and the ETag changes whenever the body does.
      */
-    async fieldBody(user: SessionUser, fieldId: number, query: ForecastQuery): Promise<FieldForecastBody> {
+    async fieldBody(user: SessionUser, fieldId: number, query: ForecastQuery, acceptsGzip = false): Promise<FieldForecastBody> {
       const { head, hours } = await fieldParts(user, fieldId, query)
       const headJson = JSON.stringify(head)
-      const body = `${headJson.slice(0, -1)},"hours":${hours.json}}`
       const etag = `W/"${createHash('sha1').update(headJson).update(hours.key).digest('base64url')}"`
-      return { body, etag }
+      const parts = [Buffer.from(`${headJson.slice(0, -1)},"hours":`), hours.json, closingBrace]
+      if (!acceptsGzip) return { parts, etag }
+      let cached = gzipped.get(fieldId)
+      if (!cached || cached.etag !== etag) {
+        cached = { etag, body: gzip(Buffer.concat(parts)) }
+        gzipped.delete(fieldId)
+        gzipped.set(fieldId, cached)
+        if (gzipped.size > HOURS_CACHE_SIZE) gzipped.delete(gzipped.keys().next().value!)
+        const mine = cached
+        mine.body.catch(() => {
+          if (gzipped.get(fieldId) === mine) gzipped.delete(fieldId)
+        })
+      }
+      return { parts: [await cached.body], etag, encoding: 'gzip' }
     },
 
     async farm(user: SessionUser, farmId: number, query: ForecastQuery): Promise<FarmForecastResponse> {

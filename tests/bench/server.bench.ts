@@ -64,7 +64,8 @@ function load(baseUrl: string, cookie: string, fieldIds: number[], until: Promis
         url: baseUrl,
         connections: CONNECTIONS,
         duration: typeof until === 'number' ? until : 600,
-        headers: { cookie, accept: 'application/json' },
+        // What the app's own requests carry (a browser always offers compression).
+        headers: { cookie, accept: 'application/json', 'accept-encoding': 'gzip, deflate, br' },
         requests: fieldIds.map((id) => ({ method: 'GET' as const, path: `/api/fields/${id}/forecast` })),
       },
       (error, result) => {

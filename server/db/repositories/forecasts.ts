@@ -32,6 +32,43 @@ export interface StoredForecastMeta {
   maxJobId: number | null
 }
 
+/** A forecast job of a field that has not finished. */
+export interface PendingForecastJob {
+  id: number
+  status: 'queued' | 'running'
+  progress: number
+}
+
+export interface FieldReadState {
+  field: { id: number; name: string; farmId: number }
+  meta: StoredForecastMeta | undefined
+  pending: PendingForecastJob | null
+  workTypesStamp: string
+}
+
+/** A row of readState's query as the driver returns it. */
+interface RawReadState {
+  id: number
+  name: string
+  farmId: number
+  hours: number | null
+  /** DATETIME values come as text ('YYYY-MM-DD hh:mm:ss.fff', UTC) through Drizzle's connection */
+  firstHour: string | null
+  lastHour: string | null
+  minVersion: string | null
+  maxVersion: string | null
+  computedAt: string | null
+  orbitSummary: string | null
+  maxJobId: number | string | null
+  pending: string | PendingForecastJob | null
+  workTypesStamp: string
+}
+
+/** A DATETIME read as text (UTC, the connection's zone) as a Date. */
+function utcDate(text: string | null): Date | null {
+  return text === null ? null : new Date(`${text.replace(' ', 'T')}Z`)
+}
+
 /** An upsert overwrites every column but the key (field, hour) with the new row's value. */
 const upsertSet = Object.fromEntries(
   Object.entries(getTableColumns(forecastHours))
@@ -140,15 +177,44 @@ export function forecastsRepository(db: DbOrTx) {
       return map
     },
 
-    /** A field's name and farm with what is stored of its forecast, in one lookup. */
-    async fieldWithMeta(fieldId: number): Promise<{ field: { id: number; name: string; farmId: number }; meta: StoredForecastMeta | undefined } | null> {
-      const [row] = await db
-        .select({ id: fields.id, name: fields.name, farmId: fields.farmId, meta: fieldForecasts })
-        .from(fields)
-        .leftJoin(fieldForecasts, eq(fieldForecasts.fieldId, fields.id))
-        .where(eq(fields.id, fieldId))
-        .limit(1)
-      return row ? { field: { id: row.id, name: row.name, farmId: row.farmId }, meta: row.meta ?? undefined } : null
+    /**
+     * What a read of a field's stored week needs, in one round trip: the field's name and
+     * farm, what is stored (field_forecasts), its pending forecast job (a running one
+     * first) and a stamp that changes whenever the work types do.
+     */
+    async readState(fieldId: number): Promise<FieldReadState | null> {
+      const [rows] = (await db.execute(sql`
+        SELECT f.id, f.name, f.farm_id AS farmId,
+          s.hours, s.first_hour AS firstHour, s.last_hour AS lastHour, s.min_version AS minVersion,
+          s.max_version AS maxVersion, s.computed_at AS computedAt, s.orbit_summary AS orbitSummary, s.max_job_id AS maxJobId,
+          (SELECT JSON_OBJECT('id', j.id, 'status', j.status, 'progress', j.progress) FROM jobs j
+            WHERE j.field_id = f.id AND j.kind = 'forecast' AND j.status IN ('queued', 'running')
+            ORDER BY j.status = 'running' DESC, j.id DESC LIMIT 1) AS pending,
+          (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(w.id), 0), '/', COALESCE(MAX(w.updated_at), '')) FROM work_types w) AS workTypesStamp
+        FROM fields f LEFT JOIN field_forecasts s ON s.field_id = f.id
+        WHERE f.id = ${fieldId}`)) as unknown as [RawReadState[]]
+      const row = rows[0]
+      if (!row) return null
+      return {
+        field: { id: row.id, name: row.name, farmId: row.farmId },
+        meta:
+          row.hours === null
+            ? undefined
+            : {
+                fieldId: row.id,
+                hours: row.hours,
+                firstHour: utcDate(row.firstHour),
+                lastHour: utcDate(row.lastHour),
+                minVersion: row.minVersion,
+                maxVersion: row.maxVersion,
+                computedAt: utcDate(row.computedAt),
+                orbitSummary: row.orbitSummary,
+                maxJobId: row.maxJobId === null ? null : Number(row.maxJobId),
+              },
+        // The driver may hand JSON_OBJECT's value over parsed or as text.
+        pending: typeof row.pending === 'string' ? (JSON.parse(row.pending) as PendingForecastJob) : row.pending,
+        workTypesStamp: row.workTypesStamp,
+      }
     },
 
     async fieldsOfFarm(farmId: number): Promise<Array<{ id: number; name: string; farmId: number }>> {
