@@ -197,7 +197,9 @@ export class JobRunner {
         while (!this.stopped && this.queue.pending + this.queue.size < this.deps.config.jobConcurrency) {
           const job = await this.store.transaction((repos) => repos.jobs.claimNext(this.id, Object.keys(this.deps.handlers)))
           if (!job) break
-          void this.queue.add(() => this.runJob(job))
+          // Look for the next job once this one has left the queue (not before: until then it
+          // still counts against the concurrency, and the claim would wait for the poll tick).
+          void this.queue.add(() => this.runJob(job)).finally(() => this.wake())
         }
       } while (this.pumpAgain && !this.stopped)
     } finally {
@@ -283,7 +285,6 @@ export class JobRunner {
     } finally {
       clearInterval(timer)
       this.controllers.delete(job.id)
-      this.wake()
     }
   }
 }

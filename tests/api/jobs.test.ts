@@ -111,6 +111,31 @@ describe('the runner', () => {
     expect(listed.every((j) => j.kind === 'forecast')).toBe(true)
   })
 
+  it('runs queued jobs back to back, without waiting for the next poll between them', async () => {
+    const kind = `${KIND}-chain`
+    const ran: number[] = []
+    // One at a time and a poll interval far longer than the test: only the runner's own
+    // wake-up after each job can start the next one.
+    const r = runner(
+      {
+        [kind]: async (ctx) => {
+          ran.push(ctx.job.id)
+          return { summary: 'ok' }
+        },
+      },
+      { pollMs: 600_000, config: { ...server.config, jobConcurrency: 1 } },
+    )
+    const ids: number[] = []
+    for (let i = 0; i < 4; i++) ids.push((await enqueueJob(store, { kind, payload: { i } }, 'supersede')).job.id)
+    const started = Date.now()
+    await r.start()
+    const end = Date.now() + 5_000
+    while (ran.length < ids.length && Date.now() < end) await new Promise((res) => setTimeout(res, 20))
+    await r.stop()
+    expect(ran).toEqual(ids)
+    expect(Date.now() - started).toBeLessThan(5_000)
+  })
+
   it('writes progress while a job runs and marks it done with a summary', async () => {
     const kind = `${KIND}-steps`
     const seen: number[] = []
