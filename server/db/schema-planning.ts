@@ -233,7 +233,7 @@ export const jobs = mysqlTable(
   (t) => [
     index('jobs_claim_idx').on(t.status, t.runAfter),
     index('jobs_dedupe_idx').on(t.dedupeKey, t.status),
-    index('jobs_field_idx').on(t.fieldId),
+    index('jobs_field_idx').on(t.fieldId, t.status),
   ],
 )
 

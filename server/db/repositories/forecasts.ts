@@ -69,6 +69,9 @@ function utcDate(text: string | null): Date | null {
   return text === null ? null : new Date(`${text.replace(' ', 'T')}Z`)
 }
 
+/** Hours written per INSERT statement. */
+const UPSERT_ROWS = 24
+
 /** An upsert overwrites every column but the key (field, hour) with the new row's value. */
 const upsertSet = Object.fromEntries(
   Object.entries(getTableColumns(forecastHours))
@@ -290,8 +293,13 @@ export function forecastsRepository(db: DbOrTx) {
           ),
         )
       }
-      if (rows.length) {
-        await db.insert(forecastHours).values(rows).onDuplicateKeyUpdate({ set: upsertSet })
+      // A day per statement: the server answers other requests between them instead of
+      // building one statement of several thousand values in one go.
+      for (let i = 0; i < rows.length; i += UPSERT_ROWS) {
+        await db
+          .insert(forecastHours)
+          .values(rows.slice(i, i + UPSERT_ROWS))
+          .onDuplicateKeyUpdate({ set: upsertSet })
       }
       await summarize(db, [fieldId])
       return 'stored'
