@@ -2,6 +2,7 @@
 // a bad value stops start-up with a message naming the variable. Documented in .env.example.
 import { randomBytes } from 'node:crypto'
 import { mkdirSync, readFileSync, writeFileSync } from 'node:fs'
+import { availableParallelism } from 'node:os'
 import { dirname } from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { z } from 'zod'
@@ -16,6 +17,9 @@ const port = (fallback: number) =>
     .optional()
     .transform((v) => (v === undefined || v === '' ? fallback : Number(v)))
     .pipe(z.number().int().min(0).max(65535))
+
+/** Forecast jobs at once unless JOB_CONCURRENCY says otherwise. */
+export const defaultJobConcurrency = Math.max(1, Math.min(16, availableParallelism() - 1))
 
 /** A whole number in [lo, hi]; empty or missing gives the fallback. */
 const intIn = (lo: number, hi: number, fallback: number) =>
@@ -47,7 +51,8 @@ const envSchema = z.object({
   MAIL_FROM: optionalString,
   LOG_LEVEL: optionalString.pipe(z.enum(logLevels).optional()),
   ORBIT_FEED_URL: optionalString.pipe(z.url('ORBIT_FEED_URL must be an http(s) address').optional()),
-  JOB_CONCURRENCY: intIn(1, 16, 2),
+  // One core is left to the API (and the database) by default: cores - 1, at least one.
+  JOB_CONCURRENCY: intIn(1, 16, defaultJobConcurrency),
   JOBS_ENABLED: optionalString.pipe(z.enum(['true', 'false', '1', '0']).optional()),
   FORECAST_STEP_MIN: intIn(1, 60, 5),
   FORECAST_SAMPLES: intIn(8, 400, 64),

@@ -50,8 +50,11 @@ config = withListeningPort(config, (server.address() as AddressInfo).port)
 server.on('request', createApp({ config, db: database.db, mailer, logger }))
 
 // Forecast jobs: triggers on changes, the runner (worker threads), start-up recovery and sweep.
+// Jobs have connections of their own, so that a busy page load never holds a job's
+// queries back in the queue for a connection, nor a job's writes the pages.
 setListenerErrorHandler((name, error) => logger.error(`listener of ${name} failed`, error))
-const store = createStore(database.db)
+const jobsDatabase = openDatabase(config.databaseUrl, { connectionLimit: config.jobConcurrency + 3 })
+const store = createStore(jobsDatabase.db)
 const jobsStarting = startJobs({ store, config, logger, handlers: planJobHandlers({ mailer }) })
 // The automatic weekly plans: due schedules become jobs (only where jobs run).
 const stopPlanScheduler = config.jobsEnabled ? startPlanScheduler({ store, logger }) : () => {}
@@ -76,6 +79,7 @@ async function shutdown(signal: string): Promise<void> {
   await jobs?.stop()
   mailer.close()
   if (fakeSmtp) await fakeSmtp.close()
+  await jobsDatabase.close()
   await database.close()
   clearTimeout(force)
   logger.info('stopped')

@@ -42,7 +42,7 @@ if (parentPort) {
   // Linux keeps a nice value per thread: lowering this thread's priority leaves the main
   // thread (the API) ahead of the engine when the cores are busy.
   try {
-    setPriority(0, 10)
+    setPriority(0, 19)
   } catch {
     // Not permitted here: run at normal priority.
   }
