@@ -1,6 +1,7 @@
 // lucia 3 sessions stored in MariaDB (sessions table) through Drizzle.
 import { DrizzleMySQLAdapter } from '@lucia-auth/adapter-drizzle'
-import { Lucia, TimeSpan } from 'lucia'
+import { eq, sql } from 'drizzle-orm'
+import { Lucia, TimeSpan, type DatabaseSession, type DatabaseUser } from 'lucia'
 import type { Role, UnitSystem } from '../../shared/schemas/common.ts'
 import type { Database } from '../db/index.ts'
 import { sessions, users } from '../db/schema.ts'
@@ -17,8 +18,46 @@ interface DatabaseUserAttributes {
   units: UnitSystem
 }
 
+/**
+ * The Drizzle adapter, with the lookup every signed-in request makes prepared once: it
+ * reads only the user columns a request uses (never the password hash) and is not
+ * rebuilt per request.
+ */
+class SessionAdapter extends DrizzleMySQLAdapter {
+  private readonly lookup
+
+  constructor(db: Database) {
+    super(db, sessions, users)
+    this.lookup = db
+      .select({
+        sessionId: sessions.id,
+        userId: sessions.userId,
+        expiresAt: sessions.expiresAt,
+        email: users.email,
+        name: users.name,
+        role: users.role,
+        active: users.active,
+        units: users.units,
+      })
+      .from(sessions)
+      .innerJoin(users, eq(sessions.userId, users.id))
+      .where(eq(sessions.id, sql.placeholder('id')))
+      .prepare()
+  }
+
+  override async getSessionAndUser(sessionId: string): Promise<[DatabaseSession | null, DatabaseUser | null]> {
+    const rows = await this.lookup.execute({ id: sessionId })
+    if (rows.length !== 1) return [null, null]
+    const { sessionId: id, userId, expiresAt, ...attributes } = rows[0]
+    return [
+      { id, userId, expiresAt, attributes: {} },
+      { id: userId, attributes },
+    ]
+  }
+}
+
 export function createLucia(db: Database, options: { secure: boolean }) {
-  const adapter = new DrizzleMySQLAdapter(db, sessions, users)
+  const adapter = new SessionAdapter(db)
   return new Lucia(adapter, {
     sessionExpiresIn: SESSION_LIFETIME,
     sessionCookie: {

@@ -64,7 +64,8 @@ export function isStale(meta: StoredForecastMeta | undefined, pending: PendingFo
 interface CachedHours {
   /** job id, computed time and range the entry was made for */
   key: string
-  hours: ForecastHour[]
+  /** ids of the work types the hours carry */
+  usedWorkTypes: Set<string>
   /** `hours` as UTF-8 JSON, written as is by every response that carries them */
   json: Buffer
 }
@@ -103,7 +104,7 @@ export function createForecastsService(ctx: ServiceContext) {
     }
     const entry = store.repos.forecasts.hours([fieldId], from, to).then((rows) => {
       const hours = rows.map(toForecastHour)
-      return { key, hours, json: Buffer.from(JSON.stringify(hours)) }
+      return { key, usedWorkTypes: usedWorkTypes(hours), json: Buffer.from(JSON.stringify(hours)) }
     })
     cache.set(fieldId, { key, entry })
     if (cache.size > HOURS_CACHE_SIZE) cache.delete(cache.keys().next().value!)
@@ -127,15 +128,16 @@ export function createForecastsService(ctx: ServiceContext) {
     return workTypes.rows
   }
 
-  /** The work types the hours carry (all active ones when there are no hours), in display order. */
-  function namesFor(hours: ForecastHour[], all: WorkTypeRow[]): Array<{ id: number; name: string }> {
+  /** Ids of the work types the hours carry. */
+  function usedWorkTypes(hours: ForecastHour[]): Set<string> {
     const used = new Set<string>()
     for (const h of hours) for (const id of Object.keys(h.workTypes)) used.add(id)
-    return all.filter((w) => used.has(String(w.id)) || (used.size === 0 && w.active)).map((w) => ({ id: w.id, name: w.name }))
+    return used
   }
 
-  async function workTypeNames(hours: ForecastHour[]): Promise<Array<{ id: number; name: string }>> {
-    return namesFor(hours, await store.repos.workTypes.list())
+  /** The work types of `used` (all active ones when there are none), in display order. */
+  function namesFor(used: Set<string>, all: WorkTypeRow[]): Array<{ id: number; name: string }> {
+    return all.filter((w) => used.has(String(w.id)) || (used.size === 0 && w.active)).map((w) => ({ id: w.id, name: w.name }))
   }
 
   function range(query: ForecastQuery, meta: StoredForecastMeta | undefined, nowMs: number): { from: Date; to: Date } {
@@ -178,7 +180,7 @@ export function createForecastsService(ctx: ServiceContext) {
     const { field, meta, pending } = state
     const { from, to } = range(query, meta, nowMs)
     const [hours, allWorkTypes] = await Promise.all([hoursOf(fieldId, meta, from, to), workTypesAt(state.workTypesStamp)])
-    const head = { ...assemble(field, meta, pending, nowMs), workTypes: namesFor(hours.hours, allWorkTypes) }
+    const head = { ...assemble(field, meta, pending, nowMs), workTypes: namesFor(hours.usedWorkTypes, allWorkTypes) }
     return { head, hours }
   }
 
@@ -228,7 +230,7 @@ export function createForecastsService(ctx: ServiceContext) {
         from: from.toISOString(),
         to: to.toISOString(),
         fields: fields.map((f) => ({ ...assemble(f, metaMap.get(f.id), pendingMap.get(f.id), nowMs), hours: byField.get(f.id) ?? [] })),
-        workTypes: await workTypeNames(all),
+        workTypes: namesFor(usedWorkTypes(all), await store.repos.workTypes.list()),
       }
     },
   }
