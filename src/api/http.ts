@@ -22,6 +22,17 @@ export class ApiError extends Error {
   }
 }
 
+/**
+ * The window event that tells the header's job bar to look at the queue soon: a change
+ * saved on the server (a field, a tree line, an outage, a work type...) may have queued
+ * forecast recomputes, which often finish within a few seconds.
+ */
+export const JOBS_QUEUED_EVENT = 'skyfurrow:jobs-queued'
+
+export function announceJobsMayBeQueued(): void {
+  window.dispatchEvent(new CustomEvent(JOBS_QUEUED_EVENT))
+}
+
 export type Query = Record<string, string | number | boolean | undefined | null>
 
 export interface RequestOptions {
@@ -111,6 +122,7 @@ async function request<T>(method: string, path: string, options: RequestOptions 
     }
     throw error
   }
+  if (method !== 'GET') announceJobsMayBeQueued()
   if (response.status === 204) return undefined as T
   const type = response.headers.get('content-type') ?? ''
   if (!type.includes('application/json')) return undefined as T

@@ -1,6 +1,6 @@
 import { message } from 'ant-design-vue'
 import { config } from '@/config'
-import { ApiError, buildUrl, toApiError } from './http'
+import { announceJobsMayBeQueued, ApiError, buildUrl, toApiError } from './http'
 
 /**
  * Sends a multipart form (file uploads) the way the JSON client sends JSON: the session
@@ -29,6 +29,7 @@ export async function postForm<T>(path: string, form: FormData, options: { quiet
     if (!options.quiet?.includes(response.status) && !error.hasFieldErrors) message.error(error.message, config.messageDurationS)
     throw error as ApiError & { body: unknown }
   }
+  announceJobsMayBeQueued()
   if (response.status === 204) return undefined as T
   return (await response.json()) as T
 }

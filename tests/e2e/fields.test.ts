@@ -131,6 +131,10 @@ describe('Fields: drawing, areas and the live sky check', () => {
     await heightInput(page).press('Tab')
     await page.getByTestId('save-obstruction').click()
     await page.locator('.ant-message').getByText(feet ? 'Tree line saved (33 ft)' : 'Tree line saved (10 m)').waitFor()
+    // The saved tree line queues recomputes of the farm's fields: the header shows them.
+    await page.getByTestId('job-progress').waitFor({ timeout: 10_000 })
+    expect(await page.getByTestId('job-progress').textContent()).toMatch(/Updating \d+ field forecasts?/)
+    await screenshot(page, 'fields-recompute-progress')
 
     // Sky check at a point inside the field, a little west of the tree line.
     await page.getByTestId('tool-sky-check').click()
