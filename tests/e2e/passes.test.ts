@@ -10,6 +10,9 @@ import type { Field } from '@shared/schemas/fields'
 import type { Pass } from '@shared/schemas/passes'
 import type { Machine, WorkType } from '@shared/schemas/planning'
 import { estimateDurationMin } from '../../shared/planning/index.ts'
+import { openDatabase } from '../../server/db/index.ts'
+import { createRepositories } from '../../server/db/repositories/index.ts'
+import { hoursFromNow, makeField, storeForecast } from '../support/passes.ts'
 import { apiFromPage, demo, screenshot, signIn, signOut, startBrowser, startServer, waitForForecast, type RunningBrowser, type RunningServer } from './support'
 
 let server: RunningServer
@@ -246,6 +249,49 @@ describe('Passes: calendar links and the client view', () => {
     } finally {
       await page.setViewportSize({ width: 1280, height: 800 })
       await signOut(page)
+    }
+  }, 60_000)
+
+  it('lists a pass whose hours went Closed as at risk, with a suggested window it moves to in one click', async () => {
+    // A field of the test's own with a stored week written as the forecast jobs write it:
+    // Spraying Closed for two hours from two hours after the next full hour, Clear otherwise.
+    const database = openDatabase(process.env.DATABASE_URL!, { connectionLimit: 2 })
+    const world = { database, repos: createRepositories(database.db) }
+    const rtk = (await world.repos.serviceLevels.findByName('RTK'))!
+    const spraying = (await world.repos.workTypes.findByName('Spraying'))!
+    const field = await makeField(world, { serviceLevelId: rtk.id }, farmId, { areaHa: 20, name: `At-risk field ${Date.now()}` })
+    try {
+      const start = hoursFromNow(0)
+      await storeForecast(world, field.id, start, { [spraying.id]: 'CCXXCCCCCCCCCCCCCCCCCCCC' })
+
+      const page = await signInAs(demo.contractor)
+      const booked = await page.evaluate(async (body) => {
+        const response = await fetch('/api/passes', { method: 'POST', credentials: 'same-origin', headers: { 'Content-Type': 'application/json' }, body })
+        return (await response.json()) as Pass
+      }, JSON.stringify({ fieldId: field.id, workTypeId: spraying.id, start: new Date(start + 3_600_000).toISOString(), durationMin: 180 }))
+      expect(booked).toMatchObject({ atRisk: true })
+
+      const itsMonday = DateTime.fromISO(booked.start, { zone }).startOf('week').toISODate()
+      await page.goto(`${server.baseUrl}/passes?farm=${farmId}&week=${itsMonday}`)
+      const item = page.getByTestId('at-risk-list').locator(`li[data-pass="${booked.id}"]`)
+      await item.waitFor()
+      expect(await item.textContent()).toMatch(/2 hours Closed for Spraying/)
+      expect(await item.textContent()).toContain('Suggested instead')
+      await screenshot(page, 'passes-at-risk')
+      // The Outlook lists it too.
+      await page.goto(`${server.baseUrl}/outlook?farm=${farmId}`)
+      await page.getByTestId('at-risk-list').locator(`li[data-pass="${booked.id}"]`).waitFor()
+
+      await page.goto(`${server.baseUrl}/passes?farm=${farmId}&week=${itsMonday}`)
+      await page.getByTestId(`move-pass-${booked.id}`).click()
+      await item.waitFor({ state: 'detached' })
+      const moved = (await passesOf(page)).find((p) => p.id === booked.id)!
+      expect(moved.atRisk).toBe(false)
+      expect(moved.start).toBe(booked.suggestedStart)
+      await signOut(page)
+    } finally {
+      await world.repos.fields.delete(field.id)
+      await database.close()
     }
   }, 60_000)
 

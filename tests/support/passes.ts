@@ -56,8 +56,8 @@ export async function planningWorld(server: TestServer): Promise<PlanningWorld> 
 
 /** A rectangular field of about `areaHa` near (latDeg, lonDeg), written through the fields repository. */
 export async function makeField(
-  server: TestServer,
-  world: PlanningWorld,
+  server: Pick<TestServer, 'repos'>,
+  world: Pick<PlanningWorld, 'serviceLevelId'>,
   farmId: number,
   options: { areaHa?: number; latDeg?: number; lonDeg?: number; name?: string } = {},
 ): Promise<{ id: number; name: string; areaHa: number }> {
@@ -106,7 +106,7 @@ let jobCounter = Date.now()
  * C clear, T tight, X closed. Returns the job id used.
  */
 export async function storeForecast(
-  server: TestServer,
+  server: Pick<TestServer, 'database'>,
   fieldId: number,
   startMs: number,
   states: Record<number, string>,
