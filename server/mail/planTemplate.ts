@@ -68,6 +68,15 @@ export function planSubject(c: Pick<PlanContent, 'farmName' | 'weekLabel'>): str
   return clean(`Weekly plan for ${c.farmName}: ${c.weekLabel}`).slice(0, 300)
 }
 
+/**
+ * The subject a revision of a week's plan is sent with: a later revision says so, so that
+ * a client can tell it from the plan it replaces.
+ * @example revisionSubject('Weekly plan for Oak Farm: 7-13 Dec 2026', 2) // -> '... (revised, version 2)'
+ */
+export function revisionSubject(subject: string, revision: number): string {
+  return revision > 1 ? `${subject} (revised, version ${revision})` : subject
+}
+
 function formatAreaText(ha: number, units: 'metric' | 'imperial'): string {
   const fmt = (v: number) => v.toLocaleString('en-US', { maximumFractionDigits: 1, minimumFractionDigits: 0 })
   return units === 'imperial' ? `${fmt(ha / HA_PER_AC)} ac` : `${fmt(ha)} ha`

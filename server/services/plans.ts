@@ -17,7 +17,7 @@ import type { UnitSystem } from '../../shared/schemas/common.ts'
 import { assertRole } from '../auth/access.ts'
 import type { PlanSendListRow } from '../db/repositories/plans.ts'
 import { badRequest, notFound } from '../http/errors.ts'
-import { finalizePlanBody } from '../mail/planTemplate.ts'
+import { finalizePlanBody, revisionSubject } from '../mail/planTemplate.ts'
 import type { ServiceContext } from './context.ts'
 import {
   composePlan,
@@ -104,7 +104,8 @@ export function createPlansService(ctx: ServiceContext) {
         farmName: plan.farm.name,
         timeZone: plan.farm.timeZone,
         weekStart: plan.weekStart,
-        subject: plan.subject,
+        // As it will be sent: the latest revision again when nothing changed, else the next.
+        subject: revisionSubject(plan.subject, latest && sameContent(latest, plan) ? latest.revision : (latest?.revision ?? 0) + 1),
         html: finalizePlanBody(plan.html, { ...fill, html: true }),
         text: finalizePlanBody(plan.text, { ...fill, html: false }),
         ics: plan.ics,

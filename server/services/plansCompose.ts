@@ -19,7 +19,7 @@ import { isDuplicate } from '../db/repositories/plans.ts'
 import type { PlanRevisionRow } from '../db/schema-planning.ts'
 import { badRequest, notFound } from '../http/errors.ts'
 import { withDeadlockRetry, wakeJobRunners } from '../jobs/enqueue.ts'
-import { planHtml, planSubject, planText, type PlanContent, type PlanDay, type PlanFieldHours, type PlanRiskLine } from '../mail/planTemplate.ts'
+import { planHtml, planSubject, planText, revisionSubject, type PlanContent, type PlanDay, type PlanFieldHours, type PlanRiskLine } from '../mail/planTemplate.ts'
 import { clearRuns, passEventData } from './calendar.ts'
 import { hourStates } from './windows.ts'
 
@@ -193,8 +193,10 @@ export async function composePlan(repos: Repositories, farmId: number, weekStart
 
 export const icsFilenameOf = (farmName: string, weekStart: string) => `plan-${slug(farmName)}-${weekStart}.ics`
 
-export function sameContent(rev: Pick<PlanRevisionRow, 'note' | 'subject' | 'html' | 'textBody' | 'ics'>, plan: ComposedPlan): boolean {
-  return rev.note === plan.note && rev.subject === plan.subject && rev.html === plan.html && rev.textBody === plan.text && rev.ics === plan.ics
+export function sameContent(rev: Pick<PlanRevisionRow, 'revision' | 'note' | 'subject' | 'html' | 'textBody' | 'ics'>, plan: ComposedPlan): boolean {
+  // Revisions stored before subjects named the revision carry the plain subject.
+  const subjectSame = rev.subject === revisionSubject(plan.subject, rev.revision) || rev.subject === plan.subject
+  return rev.note === plan.note && subjectSame && rev.html === plan.html && rev.textBody === plan.text && rev.ics === plan.ics
 }
 
 // ---- opt-out links ----------------------------------------------------------------
@@ -321,7 +323,7 @@ export async function sendPlan(
           weekStart: input.weekStart,
           revision,
           note: plan.note,
-          subject: plan.subject,
+          subject: revisionSubject(plan.subject, revision),
           html: plan.html,
           textBody: plan.text,
           ics: plan.ics,

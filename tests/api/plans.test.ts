@@ -255,6 +255,9 @@ describe('weekly plans', () => {
   })
 
   it('a changed note makes a new revision; the log opens a revision as it was sent', async () => {
+    // The preview already shows the subject the new revision will have.
+    const preview = (await world.office.post('/api/plans/preview', { farmId, weekStart, note: 'Seed arrives Wednesday instead.', units: 'metric' })).body as PlanPreview
+    expect(preview.subject).toMatch(/\(revised, version 2\)$/)
     const res = await world.office.post('/api/plans/send', { farmId, weekStart, note: 'Seed arrives Wednesday instead.', extraRecipients: [] })
     expect(res.status).toBe(202)
     const result = res.body as PlanSendResult
@@ -263,8 +266,11 @@ describe('weekly plans', () => {
     expect(result.queued).not.toContain(extra)
     await until('revision 2', async () => (await log()).filter((r) => r.revision === 2).every((r) => r.status === 'sent'))
     const detail = (await world.office.get(`/api/plans/revisions/${result.revision.id}?recipient=${encodeURIComponent(metricClient.email)}`)).body
+    // A client can tell the new plan from the one it replaces.
+    expect(detail.subject).toBe(preview.subject)
     const [mail, ...more] = await received(metricClient.email, detail.subject, 'Seed arrives Wednesday instead.')
     expect(more).toEqual([])
+    expect(mail.subject).toMatch(/^Weekly plan for .+ \(revised, version 2\)$/)
     expect(detail.note).toBe('Seed arrives Wednesday instead.')
     expect(detail.text.trim()).toBe(mail.text!.trim())
     expect(detail.ics).toContain(`UID:pass-${passId}@skyfurrow`)
