@@ -233,4 +233,27 @@ describe('Fields: drawing, areas and the live sky check', () => {
     }
     await screenshot(page, 'fields-imported')
   }, 60_000)
+
+  it('uploads a KML file from a farm-mapping tool and names the field from its placemark', async () => {
+    const { page } = browser
+    // An invented placemark further south; the OGC KML 2.2 standard writes coordinates lon,lat[,alt].
+    const name = `Creek flats ${stamp}`
+    const s = lat - 0.022
+    const ring = [[lon - 0.004, s], [lon + 0.002, s], [lon + 0.002, s + 0.003], [lon - 0.004, s + 0.003], [lon - 0.004, s]]
+    const kml = `<?xml version="1.0" encoding="UTF-8"?>
+<kml xmlns="http://www.opengis.net/kml/2.2"><Document><Placemark><name>${name}</name>
+<Polygon><outerBoundaryIs><LinearRing><coordinates>${ring.map(([x, y]) => `${x},${y},0`).join(' ')}</coordinates></LinearRing></outerBoundaryIs></Polygon>
+</Placemark></Document></kml>`
+    await page.getByTestId('open-import').click()
+    await page.getByTestId('import-file').setInputFiles({ name: 'flats.kml', mimeType: 'application/vnd.google-earth.kml+xml', buffer: Buffer.from(kml) })
+    await page.getByTestId('import-read').click()
+    const list = page.getByTestId('import-features')
+    await list.locator('li').first().waitFor()
+    expect(await list.locator('li').count()).toBe(1)
+    expect(await list.locator('li').first().locator('input[type="text"], input:not([type])').first().inputValue()).toBe(name)
+    await page.getByTestId('import-create').click()
+    await page.locator('.ant-message').getByText('1 field added').waitFor()
+    await page.getByLabel('Search fields').first().fill(name)
+    await page.getByTestId('fields-table').getByText(name).waitFor()
+  }, 60_000)
 })
