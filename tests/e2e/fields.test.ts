@@ -256,4 +256,53 @@ describe('Fields: drawing, areas and the live sky check', () => {
     await page.getByLabel('Search fields').first().fill(name)
     await page.getByTestId('fields-table').getByText(name).waitFor()
   }, 60_000)
+
+  it('cuts a pond out of the drawn field and adds a second part across the road', async () => {
+    const { page } = browser
+    await page.goto(`${server.baseUrl}/fields`)
+    await page.getByTestId('farm-map').locator('canvas').first().waitFor()
+    await page.getByTestId('goto').fill(`${lat.toFixed(4)}, ${lon}`)
+    await page.getByTestId('goto').press('Enter')
+    await page.waitForTimeout(600)
+    const map = await mapFrame(page)
+    const haShown = async () => Number(/([\d.,]+) ha/.exec((await page.getByTestId('field-area').textContent()) ?? '')![1].replace(/,/g, ''))
+
+    // The same view as when it was drawn: the field spans -160..140 x -110..110 px.
+    await page.getByTestId('tool-select').click()
+    await map.click(-100, -60)
+    await page.getByTestId('field-editor').waitFor()
+    expect(await page.getByTestId('field-name').inputValue()).toBe(fieldName)
+    const whole = await haShown()
+    // About 1.83 m per px here: a 60 x 60 px square is about 1.2 ha.
+    const square = (60 * 1.83) ** 2 / 10_000
+
+    await page.getByTestId('tool-cut-hole').click()
+    await map.click(-60, -40)
+    await map.click(0, -40)
+    await map.click(0, 20)
+    await map.dblclick(-60, 20)
+    await expect.poll(haShown).toBeLessThan(whole)
+    const withHole = await haShown()
+    expect(Math.abs(whole - withHole - square)).toBeLessThan(0.35)
+
+    await page.getByTestId('tool-add-part').click()
+    await map.click(-260, -110)
+    await map.click(-200, -110)
+    await map.click(-200, -50)
+    await map.dblclick(-260, -50)
+    await expect.poll(haShown).toBeGreaterThan(withHole)
+    expect(Math.abs(await haShown() - withHole - square)).toBeLessThan(0.35)
+    await screenshot(page, 'fields-hole-and-part')
+
+    await page.getByTestId('save-field').click()
+    await page.locator('.ant-message').getByText(`${fieldName} saved`).last().waitFor()
+    const farmId = Number(new URL(page.url()).searchParams.get('farm'))
+    const list = (await apiFromPage(page, `/api/farms/${farmId}/fields`)).body as { name: string; boundary: { type: string; coordinates: number[][][][] } }[]
+    const stored = list.find((f) => f.name === fieldName)!
+    expect(stored.boundary.type).toBe('MultiPolygon')
+    expect(stored.boundary.coordinates).toHaveLength(2)
+    // The part that was drawn first keeps its outer ring and the pond as a hole.
+    expect(stored.boundary.coordinates[0]).toHaveLength(2)
+    expect(stored.boundary.coordinates[1]).toHaveLength(1)
+  }, 90_000)
 })
