@@ -56,7 +56,7 @@ export function isStale(meta: StoredForecastMeta | undefined, pending: PendingFo
 }
 
 /**
- * Hours of recently read fields, parsed once and serialized once. A stored forecast only
+ * Hours of a recently read field, parsed once and serialized once. A stored forecast only
  * changes when a job replaces it, so an entry is used only while the field's newest job
  * id, computed time and the asked range still match what the database says (checked on
  * every request, so several server processes stay correct).
@@ -83,49 +83,50 @@ export interface FieldForecastBody {
 
 const gzip = promisify(zlibGzip)
 
+/**
+ * Per key the newest value of one version, or the making of it under way (so that
+ * concurrent misses make it once). The least recently used key goes past `size`; a value
+ * whose making failed is not kept.
+ */
+class VersionedCache<K, V> {
+  private readonly entries = new Map<K, { version: string; value: Promise<V> }>()
+
+  constructor(private readonly size: number) {}
+
+  get(key: K, version: string, make: () => Promise<V>): Promise<V> {
+    const hit = this.entries.get(key)
+    this.entries.delete(key)
+    if (hit && hit.version === version) {
+      this.entries.set(key, hit)
+      return hit.value
+    }
+    const entry = { version, value: make() }
+    this.entries.set(key, entry)
+    if (this.entries.size > this.size) this.entries.delete(this.entries.keys().next().value!)
+    entry.value.catch(() => {
+      if (this.entries.get(key) === entry) this.entries.delete(key)
+    })
+    return entry.value
+  }
+}
+
 export function createForecastsService(ctx: ServiceContext) {
   const { store } = ctx
   /**
    * Per field the newest body gzip-compressed, keyed by its ETag: a week changes far less
    * often than it is read, so each version is compressed once (on the libuv thread pool).
    */
-  const gzipped = new Map<number, { etag: string; body: Promise<Buffer> }>()
-  /** Per field the newest entry, or the read of it under way (so concurrent misses read once). */
-  const cache = new Map<number, { key: string; entry: Promise<CachedHours> }>()
+  const gzipped = new VersionedCache<number, Buffer>(HOURS_CACHE_SIZE)
+  const hoursCache = new VersionedCache<number, CachedHours>(HOURS_CACHE_SIZE)
+  /** The work types, read again only when their stamp (count, newest id, last change) moves. */
+  const workTypesCache = new VersionedCache<'all', WorkTypeRow[]>(1)
 
   function hoursOf(fieldId: number, meta: StoredForecastMeta | undefined, from: Date, to: Date): Promise<CachedHours> {
     const key = `${meta?.maxJobId ?? '-'}/${meta?.computedAt?.getTime() ?? '-'}/${from.getTime()}/${to.getTime()}`
-    const hit = cache.get(fieldId)
-    // Most recently used last.
-    cache.delete(fieldId)
-    if (hit && hit.key === key) {
-      cache.set(fieldId, hit)
-      return hit.entry
-    }
-    const entry = store.repos.forecasts.hours([fieldId], from, to).then((rows) => {
-      const hours = rows.map(toForecastHour)
+    return hoursCache.get(fieldId, key, async () => {
+      const hours = (await store.repos.forecasts.hours([fieldId], from, to)).map(toForecastHour)
       return { key, usedWorkTypes: usedWorkTypes(hours), json: Buffer.from(JSON.stringify(hours)) }
     })
-    cache.set(fieldId, { key, entry })
-    if (cache.size > HOURS_CACHE_SIZE) cache.delete(cache.keys().next().value!)
-    // A failed read is not kept.
-    entry.catch(() => {
-      if (cache.get(fieldId)?.entry === entry) cache.delete(fieldId)
-    })
-    return entry
-  }
-
-  /** The work types, read again only when their stamp (count, newest id, last change) moves. */
-  let workTypes: { stamp: string; rows: Promise<WorkTypeRow[]> } | null = null
-  function workTypesAt(stamp: string): Promise<WorkTypeRow[]> {
-    if (!workTypes || workTypes.stamp !== stamp) {
-      const entry = { stamp, rows: store.repos.workTypes.list() }
-      workTypes = entry
-      entry.rows.catch(() => {
-        if (workTypes === entry) workTypes = null
-      })
-    }
-    return workTypes.rows
   }
 
   /** Ids of the work types the hours carry. */
@@ -174,12 +175,15 @@ export function createForecastsService(ctx: ServiceContext) {
     query: ForecastQuery,
   ): Promise<{ head: Omit<FieldForecastResponse, 'hours'>; hours: CachedHours }> {
     const nowMs = Date.now()
-    // Independent reads in parallel; nothing is returned before the visibility check.
+    // One lookup first: nothing more is read before the visibility check.
     const state = await store.repos.forecasts.readState(fieldId)
     if (!state || !canSeeFarm(user, state.field.farmId)) throw notFound('The field')
     const { field, meta, pending } = state
     const { from, to } = range(query, meta, nowMs)
-    const [hours, allWorkTypes] = await Promise.all([hoursOf(fieldId, meta, from, to), workTypesAt(state.workTypesStamp)])
+    const [hours, allWorkTypes] = await Promise.all([
+      hoursOf(fieldId, meta, from, to),
+      workTypesCache.get('all', state.workTypesStamp, () => store.repos.workTypes.list()),
+    ])
     const head = { ...assemble(field, meta, pending, nowMs), workTypes: namesFor(hours.usedWorkTypes, allWorkTypes) }
     return { head, hours }
   }
@@ -195,18 +199,7 @@ export function createForecastsService(ctx: ServiceContext) {
       const etag = `W/"${createHash('sha1').update(headJson).update(hours.key).digest('base64url')}"`
       const parts = [Buffer.from(`${headJson.slice(0, -1)},"hours":`), hours.json, closingBrace]
       if (!acceptsGzip) return { parts, etag }
-      let cached = gzipped.get(fieldId)
-      if (!cached || cached.etag !== etag) {
-        cached = { etag, body: gzip(Buffer.concat(parts)) }
-        gzipped.delete(fieldId)
-        gzipped.set(fieldId, cached)
-        if (gzipped.size > HOURS_CACHE_SIZE) gzipped.delete(gzipped.keys().next().value!)
-        const mine = cached
-        mine.body.catch(() => {
-          if (gzipped.get(fieldId) === mine) gzipped.delete(fieldId)
-        })
-      }
-      return { parts: [await cached.body], etag, encoding: 'gzip' }
+      return { parts: [await gzipped.get(fieldId, etag, () => gzip(Buffer.concat(parts)))], etag, encoding: 'gzip' }
     },
 
     async farm(user: SessionUser, farmId: number, query: ForecastQuery): Promise<FarmForecastResponse> {
