@@ -1,7 +1,7 @@
 // Queries for forecast jobs and the stored forecast hours: the inputs of a field's forecast
 // (field, farm obstructions, active work types with their sigma), which fields a change
 // affects, and the per-field replacement of the stored hours in one transaction.
-import { and, asc, count, eq, getTableColumns, gte, inArray, lt, max, or, sql } from 'drizzle-orm'
+import { and, asc, count, eq, getTableColumns, gte, inArray, lt, or, sql } from 'drizzle-orm'
 import type { DbOrTx } from '../index.ts'
 import { farms } from '../schema.ts'
 import {
@@ -266,11 +266,12 @@ export function forecastsRepository(db: DbOrTx) {
     ): Promise<'stored' | 'field-gone' | 'newer-stored'> {
       const [field] = await db.select({ id: fields.id }).from(fields).where(eq(fields.id, fieldId)).for('update')
       if (!field) return 'field-gone'
-      const [{ newest }] = await db
-        .select({ newest: max(forecastHours.jobId) })
-        .from(forecastHours)
-        .where(eq(forecastHours.fieldId, fieldId))
-      if (newest !== null && Number(newest) > jobId) return 'newer-stored'
+      // What is stored, from its summary row (kept in these same transactions).
+      const [stored] = await db
+        .select({ newest: fieldForecasts.maxJobId })
+        .from(fieldForecasts)
+        .where(eq(fieldForecasts.fieldId, fieldId))
+      if (stored?.newest != null && stored.newest > jobId) return 'newer-stored'
       // The field row is locked, so the set of its hours cannot change under us: delete the
       // ones outside the window by key (record locks only, no gap locks on other fields).
       const outside = await db
