@@ -94,6 +94,7 @@ export function createPlansService(ctx: ServiceContext) {
       const plan = await composePlan(repos, input.farmId, input.weekStart, input.note)
       const recipients = await planRecipients(repos, input.farmId, input.extraRecipients ?? [])
       const latest = await repos.plans.latestRevision(input.farmId, input.weekStart)
+      const unchanged = latest !== null && sameContent(latest, plan)
       // As the chosen recipient gets it (their units, their opt-out link); without one, in the
       // given units with the link of the first recipient in those units.
       const chosen = recipients.find((r) => r.email === input.recipient)
@@ -105,7 +106,7 @@ export function createPlansService(ctx: ServiceContext) {
         timeZone: plan.farm.timeZone,
         weekStart: plan.weekStart,
         // As it will be sent: the latest revision again when nothing changed, else the next.
-        subject: revisionSubject(plan.subject, latest && sameContent(latest, plan) ? latest.revision : (latest?.revision ?? 0) + 1),
+        subject: revisionSubject(plan.subject, unchanged ? latest.revision : (latest?.revision ?? 0) + 1),
         html: finalizePlanBody(plan.html, { ...fill, html: true }),
         text: finalizePlanBody(plan.text, { ...fill, html: false }),
         ics: plan.ics,
@@ -113,7 +114,7 @@ export function createPlansService(ctx: ServiceContext) {
         events: plan.events,
         recipients,
         latestRevision: latest ? { id: latest.id, revision: latest.revision, createdAt: latest.createdAt.toISOString() } : null,
-        changedSinceLatest: latest ? !sameContent(latest, plan) : true,
+        changedSinceLatest: !unchanged,
         counts: plan.counts,
       }
     },
