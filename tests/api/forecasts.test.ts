@@ -157,12 +157,16 @@ describe('changes queue recomputes', () => {
     const beforeRes = await as.admin.get(`/api/fields/${northField.id}/forecast`)
     const before = beforeRes.body as FieldForecastResponse
     const treeLine = (await server.repos.obstructions.listByFarm(northField.farmId))[0]
+    // Earlier test files may have changed this farm's tree lines too: only a job queued
+    // after this change counts.
+    const earlier = (await as.office.get(`/api/jobs?fieldId=${northField.id}&limit=5`)).body.items as Job[]
+    const newestBefore = Math.max(0, ...earlier.map((j) => j.id))
     const patched = await as.contractor.patch(`/api/obstructions/${treeLine.id}`, { heightM: treeLine.heightM + 6 })
     expect(patched.status).toBe(200)
     // The event listener enqueues after the change committed.
     const job = await until(async () => {
       const list = (await as.office.get(`/api/jobs?fieldId=${northField.id}&limit=5`)).body.items as Job[]
-      return list.find((j) => j.reason === 'obstructions')
+      return list.find((j) => j.reason === 'obstructions' && j.id > newestBefore)
     }, 'the recompute after the tree line change', 240_000)
     expect(['queued', 'running', 'done']).toContain(job.status)
     await jobs.runner!.idle()

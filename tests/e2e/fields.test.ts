@@ -25,8 +25,13 @@ afterAll(async () => {
 
 type Page = RunningBrowser['page']
 
-/** The map element's box, and a click helper in map pixels relative to its centre. */
+/**
+ * The map element's box, and a click helper in map pixels relative to its centre. The page
+ * is scrolled to the top first: a panel below the map (the sky check) may have scrolled
+ * it, and the sticky header would then cover the map's upper edge.
+ */
 async function mapFrame(page: Page) {
+  await page.evaluate(() => window.scrollTo(0, 0))
   const box = await page.getByTestId('farm-map').boundingBox()
   if (!box) throw new Error('The map has no box')
   const cx = box.x + box.width / 2
@@ -41,6 +46,15 @@ async function mapFrame(page: Page) {
       await page.waitForTimeout(350)
     },
   }
+}
+
+/**
+ * Picks a map tool and waits until the page says it is active (its help line shows):
+ * a click on the map before that would still go to the previous tool.
+ */
+async function chooseTool(page: Page, tool: string, help: RegExp): Promise<void> {
+  await page.getByTestId(`tool-${tool}`).click()
+  await expect.poll(() => page.getByTestId('tool-help').textContent()).toMatch(help)
 }
 
 /** The number at the start of a text such as "12.4° elevation, towards E (92°)". */
@@ -73,8 +87,7 @@ describe('Fields: drawing, areas and the live sky check', () => {
     await page.getByTestId('goto').press('Enter')
     await page.waitForTimeout(600)
 
-    await page.getByTestId('tool-draw-field').click()
-    await expect.poll(() => page.getByTestId('tool-help').textContent()).toContain('double-click to finish')
+    await chooseTool(page, 'draw-field', /corners of the field; double-click to finish/)
     const map = await mapFrame(page)
     await map.click(-160, -110)
     await map.click(140, -110)
@@ -117,7 +130,7 @@ describe('Fields: drawing, areas and the live sky check', () => {
     const { page } = browser
     const map = await mapFrame(page)
 
-    await page.getByTestId('tool-tree-line').click()
+    await chooseTool(page, 'tree-line', /Click along the tree line/)
     await map.click(162, -100)
     await map.dblclick(162, 100)
     const editor = page.getByTestId('obstruction-editor')
@@ -137,7 +150,7 @@ describe('Fields: drawing, areas and the live sky check', () => {
     await screenshot(page, 'fields-recompute-progress')
 
     // Sky check at a point inside the field, a little west of the tree line.
-    await page.getByTestId('tool-sky-check').click()
+    await chooseTool(page, 'sky-check', /Click a point inside a field/)
     await map.click(128, 0)
     const panel = page.getByTestId('sky-check')
     await panel.waitFor()
@@ -180,7 +193,7 @@ describe('Fields: drawing, areas and the live sky check', () => {
   it('refuses a boundary that crosses itself and marks where', async () => {
     const { page } = browser
     await page.getByRole('button', { name: 'Close sky check' }).click()
-    await page.getByTestId('tool-draw-field').click()
+    await chooseTool(page, 'draw-field', /corners of the field; double-click to finish/)
     const map = await mapFrame(page)
     // A bow tie north of the first field.
     await map.click(-100, -250)
@@ -191,7 +204,10 @@ describe('Fields: drawing, areas and the live sky check', () => {
     await page.getByTestId('field-name').fill(`Bow tie ${stamp}`)
     await page.getByTestId('save-field').click()
     const error = page.getByTestId('boundary-error')
-    await error.waitFor()
+    await error.waitFor().catch(async (failure: unknown) => {
+      await screenshot(page, 'fields-boundary-failed')
+      throw failure
+    })
     expect(await error.textContent()).toMatch(/crosses itself/)
     await screenshot(page, 'fields-boundary-crosses')
     const farmId = Number(new URL(page.url()).searchParams.get('farm'))
@@ -268,7 +284,7 @@ describe('Fields: drawing, areas and the live sky check', () => {
     const haShown = async () => Number(/([\d.,]+) ha/.exec((await page.getByTestId('field-area').textContent()) ?? '')![1].replace(/,/g, ''))
 
     // The same view as when it was drawn: the field spans -160..140 x -110..110 px.
-    await page.getByTestId('tool-select').click()
+    await chooseTool(page, 'select', /Click a field or obstruction to edit it/)
     await map.click(-100, -60)
     await page.getByTestId('field-editor').waitFor()
     expect(await page.getByTestId('field-name').inputValue()).toBe(fieldName)
@@ -276,7 +292,7 @@ describe('Fields: drawing, areas and the live sky check', () => {
     // About 1.83 m per px here: a 60 x 60 px square is about 1.2 ha.
     const square = (60 * 1.83) ** 2 / 10_000
 
-    await page.getByTestId('tool-cut-hole').click()
+    await chooseTool(page, 'cut-hole', /Draw a pond/)
     await map.click(-60, -40)
     await map.click(0, -40)
     await map.click(0, 20)
@@ -285,7 +301,7 @@ describe('Fields: drawing, areas and the live sky check', () => {
     const withHole = await haShown()
     expect(Math.abs(whole - withHole - square)).toBeLessThan(0.35)
 
-    await page.getByTestId('tool-add-part').click()
+    await chooseTool(page, 'add-part', /Draw another part/)
     await map.click(-260, -110)
     await map.click(-200, -110)
     await map.click(-200, -50)
