@@ -11,7 +11,7 @@
  * the required share (this includes failing only the N-1 margin); Closed otherwise.
  * Medians are area-weighted; no-fix samples count as the worst value.
  */
-import type { HourAggregate, HourState, PointHourDetail, WorkType } from './forecast'
+import type { HourAggregate, HourState, PointHourDetail, WorkType } from './types'
 import type { SampleResults } from './kernel'
 import type { SamplePoint } from './sampling'
 
