@@ -20,37 +20,8 @@ import type { FieldRow, MachineRow, WorkTypeRow } from '../db/schema-planning.ts
 import { badRequest, conflict, HttpError, notFound } from '../http/errors.ts'
 import { assessPass } from './atRisk.ts'
 import type { ServiceContext } from './context.ts'
+import { toPass } from './passView.ts'
 import { estimatedDuration } from './windows.ts'
-
-export function toPass(row: PassDetailRow): Pass {
-  const start = row.startAt.getTime()
-  return {
-    id: row.id,
-    farmId: row.farmId,
-    farmName: row.farmName,
-    timeZone: row.timeZone,
-    fieldId: row.fieldId,
-    fieldName: row.fieldName,
-    fieldAreaHa: row.fieldAreaHa,
-    workTypeId: row.workTypeId,
-    workTypeName: row.workTypeName,
-    requiresClear: row.requireN1,
-    machineId: row.machineId,
-    machineName: row.machineName,
-    crew: row.crew,
-    start: row.startAt.toISOString(),
-    end: new Date(start + row.durationMin * MINUTE_MS).toISOString(),
-    durationMin: row.durationMin,
-    status: row.status,
-    atRisk: row.atRisk,
-    atRiskReason: row.atRiskReason,
-    suggestedStart: row.suggestedStartAt?.toISOString() ?? null,
-    notes: row.notes,
-    createdBy: row.createdBy,
-    createdAt: row.createdAt.toISOString(),
-    updatedAt: row.updatedAt.toISOString(),
-  }
-}
 
 /** "Planting on North 40 (Hollis Creek Farms), Thu 3 Dec 08:00 CST to 14:00 CST" */
 export function describePass(p: Pick<PassDetailRow, 'workTypeName' | 'fieldName' | 'farmName' | 'startAt' | 'durationMin' | 'timeZone'>): string {
