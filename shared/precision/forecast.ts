@@ -4,6 +4,11 @@
  * obstructions (horizon.ts), the hot loop of visibility, DOP and N-1 margin (kernel.ts)
  * and the hourly aggregates with the work-type shares and states (aggregate.ts).
  * Point forecasts and the sky view are in sky.ts.
+ *
+ * Sources: each stage names its own in its module (propagation: satellite.js SGP4 and
+ * IS-GPS-200 Table 20-IV; geometry: IOGP 373-7-2; DOP: Kaplan & Hegarty; foliage: Vogel &
+ * Goldhirsh 1986). Grouping the epochs by the set of obstructions in leaf (one mask per
+ * set and point, not per epoch) and the hourly clock-hour bins are the engine's own.
  */
 import { aggregateHour, pointDetails, workTests, type Aggregation } from './aggregate'
 import { DEG } from './constants'
