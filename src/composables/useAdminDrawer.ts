@@ -71,7 +71,11 @@ export function useAdminDrawer<Row extends { id: number; name: string }, Form ex
     }
   }
 
-  return { editing, open, saving, errors, status, openCreate, openEdit, save, remove }
+  function close(): void {
+    open.value = false
+  }
+
+  return { editing, open, saving, errors, status, openCreate, openEdit, close, save, remove }
 }
 
 /**
