@@ -305,7 +305,6 @@ function accumulatePoint(k: Kernel, e: number, p: number, nCand: number): number
  */
 function eliminateClocks(k: Kernel): number {
   const { NS, cnt, dw, bx, by, bz, cx, cy, cz, normal } = k
-  let a00 = normal[0], a01 = normal[1], a02 = normal[2], a11 = normal[3], a12 = normal[4], a22 = normal[5]
   let nClocks = 0
   for (let s = 0; s < NS; s++) {
     if (cnt[s] === 0) continue
@@ -314,19 +313,13 @@ function eliminateClocks(k: Kernel): number {
     cx[s] = bx[s] * inv
     cy[s] = by[s] * inv
     cz[s] = bz[s] * inv
-    a00 -= bx[s] * cx[s]
-    a01 -= bx[s] * cy[s]
-    a02 -= bx[s] * cz[s]
-    a11 -= by[s] * cy[s]
-    a12 -= by[s] * cz[s]
-    a22 -= bz[s] * cz[s]
+    normal[0] -= bx[s] * cx[s]
+    normal[1] -= bx[s] * cy[s]
+    normal[2] -= bx[s] * cz[s]
+    normal[3] -= by[s] * cy[s]
+    normal[4] -= by[s] * cz[s]
+    normal[5] -= bz[s] * cz[s]
   }
-  normal[0] = a00
-  normal[1] = a01
-  normal[2] = a02
-  normal[3] = a11
-  normal[4] = a12
-  normal[5] = a22
   return nClocks
 }
 
