@@ -13,13 +13,17 @@ function isRetryable(error: unknown): boolean {
   return false
 }
 
-/** Runs `work` in a transaction, retrying a few times on deadlock or lock-wait timeout. */
-export async function withDeadlockRetry<T>(store: Store, work: (repos: Repositories) => Promise<T>): Promise<T> {
+/** Runs `work` in a transaction, retrying on deadlock or lock-wait timeout (5 attempts in all by default). */
+export async function withDeadlockRetry<T>(
+  store: Store,
+  work: (repos: Repositories) => Promise<T>,
+  { attempts = 5 }: { attempts?: number } = {},
+): Promise<T> {
   for (let attempt = 1; ; attempt++) {
     try {
       return await store.transaction(work)
     } catch (error) {
-      if (attempt >= 5 || !isRetryable(error)) throw error
+      if (attempt >= attempts || !isRetryable(error)) throw error
       await new Promise((r) => setTimeout(r, 10 * attempt + Math.random() * 40))
     }
   }
