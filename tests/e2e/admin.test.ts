@@ -170,19 +170,24 @@ describe('admin: farms, users and the invitation mail', { timeout: 120_000 }, ()
   it('changes the account profile and units from the user menu', async () => {
     const { page } = browser
     await signIn(page, server.baseUrl, demo.contractor)
+    const unitsNow = () => page.evaluate(async () => (await (await fetch('/api/auth/me')).json()).units as string)
+    // Switch to the other system and back, so the demo account keeps the units it had
+    // (other browser tests read it in its own units, whatever ran before).
+    const before = await unitsNow()
+    const other = before === 'imperial' ? 'metric' : 'imperial'
+    const label = { imperial: 'Imperial (ac, ft, in)', metric: 'Metric (ha, m, cm)' } as const
     await page.getByTestId('user-menu').click()
     await page.getByRole('menuitem', { name: 'Profile and units' }).click()
     await page.getByRole('heading', { name: 'Your account', level: 1 }).waitFor()
-    await page.getByText('Imperial (ac, ft, in)').click()
+    await page.getByText(label[other]).click()
     await page.getByRole('button', { name: 'Save profile' }).click()
     await page.getByText('Profile saved.').waitFor()
     await screenshot(page, 'account')
-    const units = await page.evaluate(async () => (await (await fetch('/api/auth/me')).json()).units)
-    expect(units).toBe('imperial')
-    // Put it back, so the demo account keeps its units.
-    await page.getByText('Metric (ha, m, cm)').click()
+    expect(await unitsNow()).toBe(other)
+    await page.getByText(label[before as 'imperial' | 'metric']).click()
     await page.getByRole('button', { name: 'Save profile' }).click()
     await page.getByText('Profile saved.').first().waitFor()
+    await expect.poll(unitsNow).toBe(before)
     await signOut(page)
   })
 })
