@@ -2,7 +2,8 @@
 import type { Machine, MachineInput, MachinePatch } from '../../shared/schemas/planning.ts'
 import { isDuplicateKey } from '../db/repositories/util.ts'
 import type { MachineRow } from '../db/schema-planning.ts'
-import { conflict, notFound } from '../http/errors.ts'
+import type { Repositories } from '../db/repositories/index.ts'
+import { badRequest, conflict, notFound } from '../http/errors.ts'
 import type { ServiceContext } from './context.ts'
 
 const NAME_TAKEN = 'A machine with this name already exists.'
@@ -16,12 +17,23 @@ export function toMachine(row: MachineRow): Machine {
     rateHaPerH: row.rateHaPerH,
     active: row.active,
     notes: row.notes,
+    operatorUserId: row.operatorUserId,
   }
 }
 
 function rethrowDuplicate(error: unknown): never {
   if (isDuplicateKey(error)) throw conflict(NAME_TAKEN, { name: NAME_TAKEN })
   throw error
+}
+
+/** 400 unless the operator is a user who may work passes (not a farm client). */
+async function checkOperator(repos: Repositories, userId: number | null | undefined) {
+  if (userId === null || userId === undefined) return
+  const user = await repos.users.findById(userId)
+  if (!user) throw badRequest(`No user with id ${userId}.`, { operatorUserId: 'No such user.' })
+  if (user.role === 'client') {
+    throw badRequest(`${user.name} is a farm client and cannot run a machine.`, { operatorUserId: 'Choose a contractor, office or admin user.' })
+  }
 }
 
 export function createMachinesService(ctx: ServiceContext) {
@@ -42,6 +54,7 @@ export function createMachinesService(ctx: ServiceContext) {
       try {
         return await store.transaction(async (repos) => {
           if (await repos.machines.nameTaken(input.name)) throw conflict(NAME_TAKEN, { name: NAME_TAKEN })
+          await checkOperator(repos, input.operatorUserId)
           const id = await repos.machines.insert(input)
           return toMachine((await repos.machines.findById(id))!)
         })
@@ -57,6 +70,7 @@ export function createMachinesService(ctx: ServiceContext) {
           if (patch.name !== undefined && (await repos.machines.nameTaken(patch.name, id))) {
             throw conflict(NAME_TAKEN, { name: NAME_TAKEN })
           }
+          await checkOperator(repos, patch.operatorUserId)
           const changes = Object.fromEntries(Object.entries(patch).filter(([, v]) => v !== undefined))
           if (Object.keys(changes).length) await repos.machines.update(id, changes)
           return toMachine((await repos.machines.findById(id))!)
