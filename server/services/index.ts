@@ -17,6 +17,7 @@ import { createWindowsService } from './windows.ts'
 import { createHourDetailService } from './hourDetail.ts'
 import { createCalendarService } from './calendar.ts'
 import { createCrewService } from './crew.ts'
+import { createTaskDataService } from './taskData.ts'
 import { createJobsService } from './jobs.ts'
 import { createMachinesService } from './machines.ts'
 import { createServiceLevelsService } from './serviceLevels.ts'
@@ -50,6 +51,7 @@ export function createServices(ctx: ServiceContext) {
     atRisk: createAtRiskService(ctx),
     exports: createExportsService(ctx),
     crew: createCrewService(ctx),
+    taskData: createTaskDataService(ctx),
   }
 }
 export type Services = ReturnType<typeof createServices>
