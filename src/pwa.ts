@@ -5,6 +5,7 @@
 import { registerSW } from 'virtual:pwa-register'
 
 export function registerServiceWorker(): void {
-  if (!('serviceWorker' in navigator) || import.meta.env.DEV) return
+  // In `npm run dev` the plugin's virtual module registers nothing (devOptions are off).
+  if (!('serviceWorker' in navigator)) return
   registerSW({ immediate: true })
 }
