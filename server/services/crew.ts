@@ -7,7 +7,7 @@ import type { SessionUser } from '../../shared/schemas/auth.ts'
 import type { CrewPass, CrewWeek } from '../../shared/schemas/crew.ts'
 import type { Boundary } from '../../shared/schemas/geo.ts'
 import type { ServiceContext } from './context.ts'
-import { toPass } from './passes.ts'
+import { toPass } from './passView.ts'
 import { hourStates } from './windows.ts'
 
 /** How far back the week starts (a pass started this morning is still shown tonight). */

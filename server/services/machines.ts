@@ -1,10 +1,9 @@
 // Machines and their crews: everyone signed in reads them; admins create, change, delete.
 import type { Machine, MachineInput, MachinePatch } from '../../shared/schemas/planning.ts'
-import { isDuplicateKey } from '../db/repositories/util.ts'
 import type { MachineRow } from '../db/schema-planning.ts'
 import type { Repositories } from '../db/repositories/index.ts'
 import { badRequest, conflict, notFound } from '../http/errors.ts'
-import type { ServiceContext } from './context.ts'
+import { rethrowUniqueAsConflict, type ServiceContext } from './context.ts'
 
 const NAME_TAKEN = 'A machine with this name already exists.'
 
@@ -19,11 +18,6 @@ export function toMachine(row: MachineRow): Machine {
     notes: row.notes,
     operatorUserId: row.operatorUserId,
   }
-}
-
-function rethrowDuplicate(error: unknown): never {
-  if (isDuplicateKey(error)) throw conflict(NAME_TAKEN, { name: NAME_TAKEN })
-  throw error
 }
 
 /** 400 unless the operator is a user who may work passes (not a farm client). */
@@ -59,7 +53,7 @@ export function createMachinesService(ctx: ServiceContext) {
           return toMachine((await repos.machines.findById(id))!)
         })
       } catch (error) {
-        rethrowDuplicate(error)
+        rethrowUniqueAsConflict(error, NAME_TAKEN, 'name')
       }
     },
 
@@ -76,7 +70,7 @@ export function createMachinesService(ctx: ServiceContext) {
           return toMachine((await repos.machines.findById(id))!)
         })
       } catch (error) {
-        rethrowDuplicate(error)
+        rethrowUniqueAsConflict(error, NAME_TAKEN, 'name')
       }
     },
 

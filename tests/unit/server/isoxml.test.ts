@@ -10,6 +10,7 @@ import { XMLParser } from 'fast-xml-parser'
 import type { MultiPolygon, Polygon } from 'geojson'
 import JSZip from 'jszip'
 import { describe, expect, it } from 'vitest'
+import type { Boundary } from '../../../shared/schemas/geo.ts'
 import { measureBoundary } from '../../../server/imports/geometry.ts'
 import { buildTaskData, readTaskDataBoundaries, type TaskData } from '../../../server/imports/isoxml.ts'
 import { readBoundaryFile } from '../../../server/imports/readers.ts'
@@ -59,9 +60,10 @@ describe('reading a hand-written TASKDATA.XML', () => {
     ])
     expect(pond.coordinates[1][0]).toEqual([-95.999, 41.001])
     // The hole is cut out of the area: area(with hole) = area(exterior) - area(hole) (derived).
-    const whole = measureBoundary({ type: 'Polygon', coordinates: [pond.coordinates[0]] }).areaHa
-    const hole = measureBoundary({ type: 'Polygon', coordinates: [pond.coordinates[1]] }).areaHa
-    expect(measureBoundary(pond).areaHa).toBeCloseTo(whole - hole, 6)
+    const measure = (g: Polygon) => measureBoundary(g as Boundary).areaHa
+    const whole = measure({ type: 'Polygon', coordinates: [pond.coordinates[0]] })
+    const hole = measure({ type: 'Polygon', coordinates: [pond.coordinates[1]] })
+    expect(measure(pond)).toBeCloseTo(whole - hole, 6)
     expect(hole).toBeGreaterThan(0.5)
   })
 
