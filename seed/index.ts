@@ -6,6 +6,7 @@ import { hashPassword } from '../server/auth/password.ts'
 import { loadConfig } from '../server/config.ts'
 import { openDatabase, type Database } from '../server/db/index.ts'
 import { createStore } from '../server/db/repositories/index.ts'
+import { seedOperators } from './crew.ts'
 import { seedFields } from './fields.ts'
 import { seedPasses } from './passes.ts'
 import { seedPlanning } from './planning.ts'
@@ -21,6 +22,8 @@ export async function seedDemo(db: Database): Promise<SeedResult> {
   // Service levels, work types and machines first: fields and passes refer to them.
   await seedPlanning(db)
   const result = await seedPeopleAndFarms(db)
+  // The demo crew member runs the machines whose crew names them (the cab view).
+  await seedOperators(db)
   // The demo farms' fields and obstructions (each farm only while it has none).
   await seedFields(db)
   // Last: demo passes in the coming days on those fields (only while none is upcoming).

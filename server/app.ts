@@ -28,6 +28,8 @@ import { planRoutes } from './routes/plans.ts'
 import { windowRoutes } from './routes/windows.ts'
 import { hourDetailRoutes } from './routes/hourDetail.ts'
 import { calendarRoutes } from './routes/calendar.ts'
+import { crewRoutes } from './routes/crew.ts'
+import { taskDataRoutes } from './routes/taskData.ts'
 import { forecastRoutes } from './routes/forecasts.ts'
 import { jobRoutes } from './routes/jobs.ts'
 import { machineRoutes } from './routes/machines.ts'
@@ -140,6 +142,8 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
   api.use(hourDetailRoutes(services))
   api.use(calendarRoutes(services))
   api.use(planRoutes(services))
+  api.use('/crew', crewRoutes(services))
+  api.use(taskDataRoutes(services))
   api.use(apiNotFound)
   app.use('/api', api)
 

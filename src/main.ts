@@ -33,6 +33,7 @@ import App from './App.vue'
 import { setUnauthorizedHandler } from './api/http'
 import { config } from './config'
 import { router, RouteNames } from './router'
+import { registerServiceWorker } from './pwa'
 import { useSessionStore } from './stores/session'
 
 const app = createApp(App)
@@ -81,3 +82,4 @@ setUnauthorizedHandler(() => {
 })
 
 void router.isReady().then(() => app.mount('#app'))
+registerServiceWorker()

@@ -85,6 +85,8 @@ export const machines = mysqlTable(
     rateHaPerH: double('rate_ha_per_h'),
     active: boolean('active').notNull().default(true),
     notes: varchar('notes', { length: 1000 }).notNull().default(''),
+    /** The signed-in user who runs this machine: its passes show in that user's cab view. */
+    operatorUserId: int('operator_user_id').references(() => users.id, { onDelete: 'set null' }),
     createdAt: createdAt(),
     updatedAt: updatedAt(),
   },
@@ -317,7 +319,15 @@ export const passes = mysqlTable(
     machineId: int('machine_id').references(() => machines.id, { onDelete: 'set null' }),
     startAt: at('start_at').notNull(),
     durationMin: int('duration_min').notNull(),
-    status: varchar('status', { length: 16, enum: ['planned', 'confirmed', 'done', 'cancelled'] }).notNull(),
+    status: varchar('status', { length: 16, enum: ['planned', 'confirmed', 'started', 'done', 'cancelled'] }).notNull(),
+    /** When and by whom the status was last set (null for passes older than the column). */
+    statusChangedAt: at('status_changed_at'),
+    statusChangedBy: int('status_changed_by').references(() => users.id, { onDelete: 'set null' }),
+    /**
+     * Bumped by every change a person makes (not by the at-risk check), so that a change
+     * made from an older copy (an offline cab) is refused with 409 instead of overwriting.
+     */
+    version: int('version').notNull().default(1),
     atRisk: boolean('at_risk').notNull().default(false),
     atRiskReason: varchar('at_risk_reason', { length: 500 }),
     suggestedStartAt: at('suggested_start_at'),

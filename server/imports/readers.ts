@@ -1,7 +1,8 @@
 // Boundary files as uploaded, read into one GeoJSON FeatureCollection in WGS-84
 // longitude/latitude. The format is told from the content, never from the file name:
-// a zip (KMZ: a .kml inside; zipped ESRI Shapefile: .shp + .dbf + .prj; or a zipped
-// GeoJSON), GeoJSON text (FeatureCollection, Feature or a bare geometry), or KML text.
+// a zip (KMZ: a .kml inside; zipped ESRI Shapefile: .shp + .dbf + .prj; a zipped
+// GeoJSON; or ISO 11783-10 task data, TASKDATA.XML), GeoJSON text (FeatureCollection,
+// Feature or a bare geometry), KML text, or TASKDATA.XML text (isoxml.ts).
 //
 // Shapefiles: ESRI Shapefile Technical Description (ESRI white paper, July 1998) read by
 // the `shapefile` package; the .prj WKT is handed to proj4 and coordinates are
@@ -13,6 +14,7 @@ import proj4 from 'proj4'
 import * as shapefile from 'shapefile'
 import type { BoundaryFileFormat } from '../../shared/schemas/fields.ts'
 import { badRequest } from '../http/errors.ts'
+import { looksLikeTaskData, readTaskDataBoundaries } from './isoxml.ts'
 import { expandEntries, inspectZip, isZip, type ZipEntryInfo, type ZipLimits, DEFAULT_ZIP_LIMITS } from './zip.ts'
 
 export interface BoundaryFile {
@@ -24,7 +26,7 @@ export interface BoundaryFile {
 
 const refuse = (message: string) => badRequest(message, { file: message })
 
-const KINDS = 'GeoJSON, KML, KMZ or a zipped ESRI Shapefile (.shp, .dbf and .prj in one .zip)'
+const KINDS = 'GeoJSON, KML, KMZ, ISO 11783-10 task data (TASKDATA.XML, or a .zip holding it) or a zipped ESRI Shapefile (.shp, .dbf and .prj in one .zip)'
 
 /** Reads an uploaded boundary file; 400 naming the problem when it cannot be read. */
 export async function readBoundaryFile(buf: Buffer, limits: ZipLimits = DEFAULT_ZIP_LIMITS): Promise<BoundaryFile> {
@@ -37,6 +39,7 @@ export async function readBoundaryFile(buf: Buffer, limits: ZipLimits = DEFAULT_
   const t = text.replace(/^\uFEFF/, '').trimStart()
   if (t.startsWith('{') || t.startsWith('[')) return { format: 'geojson', ...readGeoJson(t) }
   if (t.startsWith('<')) {
+    if (looksLikeTaskData(t)) return { format: 'isoxml', sourceCrs: null, collection: readTaskData(t) }
     if (!/<kml[\s>]/i.test(t.slice(0, 4096))) throw refuse(`This XML file is not KML. Upload ${KINDS}.`)
     return { format: 'kml', sourceCrs: null, collection: readKml(t) }
   }
@@ -110,7 +113,19 @@ function readKml(text: string): FeatureCollection<Geometry | null> {
   return collection
 }
 
-// ---- zip: KMZ, zipped shapefile, zipped GeoJSON ---------------------------------------
+// ---- ISO 11783-10 task data -------------------------------------------------------------
+
+/** Each partfield (PFD) with a boundary becomes one feature named by its designator. */
+function readTaskData(text: string): FeatureCollection<Geometry | null> {
+  const features: Feature<Geometry | null>[] = readTaskDataBoundaries(text).map((p) => ({
+    type: 'Feature',
+    properties: { name: p.designator, partfield: p.id, farm: p.farm, customer: p.customer },
+    geometry: p.boundary,
+  }))
+  return { type: 'FeatureCollection', features }
+}
+
+// ---- zip: KMZ, zipped shapefile, zipped GeoJSON, zipped task data -----------------------
 
 const base = (name: string) => name.replace(/\\/g, '/').split('/').pop()!
 const ext = (name: string) => (/\.([^./]+)$/.exec(name)?.[1] ?? '').toLowerCase()
@@ -124,6 +139,11 @@ async function readZip(buf: Buffer, limits: ZipLimits): Promise<BoundaryFile> {
   const kmls = byExt('kml')
   const shps = byExt('shp')
   const jsons = [...byExt('geojson'), ...byExt('json')]
+  const taskData = entries.find((e) => base(e.name).toUpperCase() === 'TASKDATA.XML')
+  if (taskData) {
+    const files = await expandEntries(buf, entries, [taskData.name], limits)
+    return { format: 'isoxml', sourceCrs: null, collection: readTaskData(decodeText(files.get(taskData.name)!).replace(/^\uFEFF/, '')) }
+  }
   if (kmls.length) {
     const chosen = kmls.find((e) => base(e.name).toLowerCase() === 'doc.kml') ?? kmls[0]
     const files = await expandEntries(buf, entries, [chosen.name], limits)
@@ -135,7 +155,7 @@ async function readZip(buf: Buffer, limits: ZipLimits): Promise<BoundaryFile> {
     return { format: 'geojson', ...readGeoJson(decodeText(files.get(jsons[0].name)!).replace(/^\uFEFF/, '')) }
   }
   const names = entries.slice(0, 6).map((e) => base(e.name)).join(', ')
-  throw refuse(`The zip file holds no .shp, .kml or .geojson file (it holds ${names}${entries.length > 6 ? ', ...' : ''}).`)
+  throw refuse(`The zip file holds no .shp, .kml, .geojson or TASKDATA.XML file (it holds ${names}${entries.length > 6 ? ', ...' : ''}).`)
 }
 
 async function readZippedShapefiles(buf: Buffer, entries: ZipEntryInfo[], shps: ZipEntryInfo[], limits: ZipLimits): Promise<BoundaryFile> {

@@ -8,7 +8,9 @@ import {
   passCsvQuerySchema,
   passInputSchema,
   passListQuerySchema,
+  passNoteSchema,
   passPatchSchema,
+  passStatusChangeSchema,
 } from '../../shared/schemas/passes.ts'
 import { farmEditorRoles } from '../auth/access.ts'
 import { currentAuth, requireAuth, requireRole } from '../auth/middleware.ts'
@@ -60,6 +62,18 @@ export function passRoutes(services: Services): Router {
   router.post('/passes/:id/done', editors, async (req, res) => {
     const { id } = parse(idParamsSchema, req.params, 'address')
     res.json(await passes.done(currentAuth(req).user, id))
+  })
+
+  router.post('/passes/:id/status', editors, async (req, res) => {
+    const { id } = parse(idParamsSchema, req.params, 'address')
+    const change = parse(passStatusChangeSchema, req.body)
+    res.json(await passes.setStatus(currentAuth(req).user, id, change))
+  })
+
+  router.post('/passes/:id/notes', editors, async (req, res) => {
+    const { id } = parse(idParamsSchema, req.params, 'address')
+    const note = parse(passNoteSchema, req.body)
+    res.json(await passes.addNote(currentAuth(req).user, id, note))
   })
 
   return router

@@ -15,7 +15,7 @@ import {
   requiresClear,
 } from '../../shared/planning/index.ts'
 import type { SessionUser } from '../../shared/schemas/auth.ts'
-import { activePassStatuses, type AtRiskQuery, type Pass } from '../../shared/schemas/passes.ts'
+import { upcomingPassStatuses, type AtRiskQuery, type Pass } from '../../shared/schemas/passes.ts'
 import { assertFarmVisible, visibleFarmIds } from '../auth/access.ts'
 import type { Repositories } from '../db/repositories/index.ts'
 import type { PassDetailRow } from '../db/repositories/passes.ts'
@@ -41,15 +41,17 @@ type Assessable = Pick<
 >
 
 /**
- * The at-risk columns of a pass from the stored forecast. Passes that are done, cancelled
- * or already over are never at risk. The suggestion keeps to daylight unless the pass
- * itself runs at night, leaves out the machine's other bookings and, for work that needs
- * Clear hours, accepts Clear hours only.
+ * The at-risk columns of a pass from the stored forecast. Passes that are started, done,
+ * cancelled or already over are never at risk. The suggestion keeps to daylight hours by
+ * default (like the window finder's day-only default): only a pass that itself runs at
+ * night, and for which no daylight window exists, gets a suggestion with night hours. It
+ * leaves out the machine's other bookings and, for work that needs Clear hours, accepts
+ * Clear hours only.
  */
 export async function assessPass(repos: Repositories, pass: Assessable, nowMs: number): Promise<RiskColumns> {
   const startMs = pass.startAt.getTime()
   const endMs = startMs + pass.durationMin * MINUTE_MS
-  if (!activePassStatuses.includes(pass.status) || endMs <= nowMs) return noRisk
+  if (!upcomingPassStatuses.includes(pass.status) || endMs <= nowMs) return noRisk
   const strict = requiresClear({ requireN1: pass.requireN1 })
   const searchFrom = ceilHour(nowMs)
   const searchTo = searchFrom + SUGGESTION_SPAN_MS
@@ -78,17 +80,19 @@ export async function assessPass(repos: Repositories, pass: Assessable, nowMs: n
     const busy = pass.machineId
       ? await repos.passes.machineBusy(pass.machineId, new Date(searchFrom), new Date(searchTo), pass.id)
       : []
-    const [best] = findWindows({
-      hours,
-      durationMin: pass.durationMin,
-      fromMs: searchFrom,
-      toMs: searchTo,
-      timeZone: pass.timeZone,
-      excludeNightAt: runsAtNight ? null : centroid,
-      busy,
-      requireClear: strict,
-      limit: 1,
-    })
+    const search = (excludeNightAt: typeof centroid | null) =>
+      findWindows({
+        hours,
+        durationMin: pass.durationMin,
+        fromMs: searchFrom,
+        toMs: searchTo,
+        timeZone: pass.timeZone,
+        excludeNightAt,
+        busy,
+        requireClear: strict,
+        limit: 1,
+      })[0]
+    const best = search(centroid) ?? (runsAtNight ? search(null) : undefined)
     if (best) suggestedStartAt = new Date(best.startMs)
   }
   return { atRisk: true, atRiskReason: risk.reason, suggestedStartAt }
@@ -108,7 +112,7 @@ export function createAtRiskService(ctx: ServiceContext) {
    */
   async function recheckField(fieldId: number, nowMs = Date.now()): Promise<number> {
     return store.transaction(async (repos) => {
-      const list = await repos.passes.list({ fieldId, statuses: activePassStatuses, from: new Date(nowMs) })
+      const list = await repos.passes.list({ fieldId, statuses: upcomingPassStatuses, from: new Date(nowMs) })
       let changed = 0
       for (const pass of list) {
         const next = await assessPass(repos, pass, nowMs)
@@ -137,7 +141,7 @@ export function createAtRiskService(ctx: ServiceContext) {
       const rows = await store.repos.passes.list({
         onlyFarmIds: visibleFarmIds(user),
         farmId: query.farmId,
-        statuses: activePassStatuses,
+        statuses: upcomingPassStatuses,
         atRisk: true,
         from: new Date(nowMs),
       })

@@ -79,7 +79,7 @@ export function passEventData(p: PassDetailRow, zone: string): ICalEventData {
     lastModified: p.updatedAt,
     summary: `${p.atRisk ? 'At risk: ' : ''}${p.workTypeName} · ${p.fieldName}`,
     description: lines.join('\n'),
-    status: p.status === 'confirmed' ? ICalEventStatus.CONFIRMED : ICalEventStatus.TENTATIVE,
+    status: p.status === 'planned' ? ICalEventStatus.TENTATIVE : ICalEventStatus.CONFIRMED,
     busystatus: ICalEventBusyStatus.BUSY,
     transparency: ICalEventTransparency.OPAQUE,
   }

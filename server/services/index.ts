@@ -16,6 +16,8 @@ import { createPlansService } from './plans.ts'
 import { createWindowsService } from './windows.ts'
 import { createHourDetailService } from './hourDetail.ts'
 import { createCalendarService } from './calendar.ts'
+import { createCrewService } from './crew.ts'
+import { createTaskDataService } from './taskData.ts'
 import { createJobsService } from './jobs.ts'
 import { createMachinesService } from './machines.ts'
 import { createServiceLevelsService } from './serviceLevels.ts'
@@ -48,6 +50,8 @@ export function createServices(ctx: ServiceContext) {
     calendar: createCalendarService(ctx),
     atRisk: createAtRiskService(ctx),
     exports: createExportsService(ctx),
+    crew: createCrewService(ctx),
+    taskData: createTaskDataService(ctx),
   }
 }
 export type Services = ReturnType<typeof createServices>

@@ -1,7 +1,8 @@
 // Machines and their crews: everyone signed in reads them; admins create, change, delete.
 import type { Machine, MachineInput, MachinePatch } from '../../shared/schemas/planning.ts'
 import type { MachineRow } from '../db/schema-planning.ts'
-import { conflict, notFound } from '../http/errors.ts'
+import type { Repositories } from '../db/repositories/index.ts'
+import { badRequest, conflict, notFound } from '../http/errors.ts'
 import { rethrowUniqueAsConflict, type ServiceContext } from './context.ts'
 
 const NAME_TAKEN = 'A machine with this name already exists.'
@@ -15,6 +16,17 @@ export function toMachine(row: MachineRow): Machine {
     rateHaPerH: row.rateHaPerH,
     active: row.active,
     notes: row.notes,
+    operatorUserId: row.operatorUserId,
+  }
+}
+
+/** 400 unless the operator is a user who may work passes (not a farm client). */
+async function checkOperator(repos: Repositories, userId: number | null | undefined) {
+  if (userId === null || userId === undefined) return
+  const user = await repos.users.findById(userId)
+  if (!user) throw badRequest(`No user with id ${userId}.`, { operatorUserId: 'No such user.' })
+  if (user.role === 'client') {
+    throw badRequest(`${user.name} is a farm client and cannot run a machine.`, { operatorUserId: 'Choose a contractor, office or admin user.' })
   }
 }
 
@@ -36,6 +48,7 @@ export function createMachinesService(ctx: ServiceContext) {
       try {
         return await store.transaction(async (repos) => {
           if (await repos.machines.nameTaken(input.name)) throw conflict(NAME_TAKEN, { name: NAME_TAKEN })
+          await checkOperator(repos, input.operatorUserId)
           const id = await repos.machines.insert(input)
           return toMachine((await repos.machines.findById(id))!)
         })
@@ -51,6 +64,7 @@ export function createMachinesService(ctx: ServiceContext) {
           if (patch.name !== undefined && (await repos.machines.nameTaken(patch.name, id))) {
             throw conflict(NAME_TAKEN, { name: NAME_TAKEN })
           }
+          await checkOperator(repos, patch.operatorUserId)
           const changes = Object.fromEntries(Object.entries(patch).filter(([, v]) => v !== undefined))
           if (Object.keys(changes).length) await repos.machines.update(id, changes)
           return toMachine((await repos.machines.findById(id))!)

@@ -10,8 +10,10 @@ import {
   type Pass,
   type PassInput,
   type PassListQuery,
+  type PassNote,
   type PassPatch,
   type PassStatus,
+  type PassStatusChange,
 } from '../../shared/schemas/passes.ts'
 import { assertFarmVisible, visibleFarmIds } from '../auth/access.ts'
 import type { Repositories } from '../db/repositories/index.ts'
@@ -101,10 +103,29 @@ export function createPassesService(ctx: ServiceContext) {
     return { ...row, ...risk }
   }
 
-  async function update(user: SessionUser, id: number, patch: PassPatch): Promise<Pass> {
+  /**
+   * 409 when the caller's copy of the pass (its version) is older than the stored one,
+   * naming who changed it and when, so that a change queued offline never silently
+   * overwrites the office's (or another crew's) change.
+   */
+  function checkVersion(current: PassDetailRow, version: number | undefined) {
+    if (version === undefined || version === current.version) return
+    const who = current.statusChangedByName ? ` Its status is ${current.status}, set by ${current.statusChangedByName}.` : ` Its status is ${current.status}.`
+    const when = localLabel(current.updatedAt.getTime(), current.timeZone)
+    throw new HttpError(
+      409,
+      'pass_changed',
+      `This pass (${current.workTypeName} on ${current.fieldName}) was changed on ${when} after your copy was loaded.${who} Your change was not applied; look at the pass as it is now and make it again if it still holds.`,
+      { version: `The pass is at version ${current.version}; your copy was version ${version}.` },
+    )
+  }
+
+  async function update(user: SessionUser, id: number, patch: PassPatch, options: { version?: number; appendNote?: string } = {}): Promise<Pass> {
     return bookingTransaction(async (repos) => {
+      if (!(await repos.passes.lockPass(id))) throw notFound('The pass')
       const current = await load(repos, id)
       assertFarmVisible(user, current.farmId)
+      checkVersion(current, options.version ?? patch.version)
       const ids = {
         fieldId: patch.fieldId ?? current.fieldId,
         workTypeId: patch.workTypeId ?? current.workTypeId,
@@ -125,8 +146,10 @@ export function createPassesService(ctx: ServiceContext) {
         startAt,
         durationMin,
         status,
+        ...(status !== current.status ? { statusChangedAt: new Date(), statusChangedBy: user.id } : {}),
         ...(patch.notes !== undefined ? { notes: patch.notes } : {}),
       }
+      if (options.appendNote) changes.notes = appendNote(changes.notes ?? current.notes, user, options.appendNote, current.timeZone)
       await repos.passes.update(id, changes)
       return toPass(await refreshRisk(repos, id))
     })
@@ -173,6 +196,8 @@ export function createPassesService(ctx: ServiceContext) {
           suggestedStartAt: null,
           notes: input.notes,
           createdBy: user.id,
+          statusChangedAt: new Date(),
+          statusChangedBy: user.id,
         })
         return toPass(await refreshRisk(repos, id))
       })
@@ -181,22 +206,45 @@ export function createPassesService(ctx: ServiceContext) {
     update,
 
     async cancel(user: SessionUser, id: number): Promise<Pass> {
-      return setStatus(user, id, 'cancelled')
+      return setStatus(user, id, { status: 'cancelled', note: '' })
     },
 
     async done(user: SessionUser, id: number): Promise<Pass> {
-      return setStatus(user, id, 'done')
+      return setStatus(user, id, { status: 'done', note: '' })
+    },
+
+    setStatus,
+
+    /** Adds a dated note from the field to the pass's notes. */
+    async addNote(user: SessionUser, id: number, note: PassNote): Promise<Pass> {
+      return update(user, id, {}, { version: note.version, appendNote: note.text })
     },
   }
 
-  async function setStatus(user: SessionUser, id: number, status: 'cancelled' | 'done'): Promise<Pass> {
+  /**
+   * Marks a pass planned, confirmed, started, done or cancelled, recording who and when.
+   * Setting the status it already has only adds the note (a repeated offline send is
+   * harmless). A cancelled pass is planned again before it is started or done.
+   */
+  async function setStatus(user: SessionUser, id: number, change: PassStatusChange): Promise<Pass> {
     const current = await load(store.repos, id)
     assertFarmVisible(user, current.farmId)
-    if (current.status === status) return toPass(current)
-    if (status === 'done' && current.status === 'cancelled') {
-      throw new HttpError(409, 'conflict', 'A cancelled pass cannot be marked done; plan it again first.')
+    const { status, note, version } = change
+    if (current.status === status) {
+      if (!note) return toPass(current)
+      return update(user, id, {}, { version, appendNote: note })
     }
-    return update(user, id, { status })
+    if ((status === 'done' || status === 'started') && current.status === 'cancelled') {
+      throw new HttpError(409, 'conflict', `A cancelled pass cannot be marked ${status}; plan it again first.`)
+    }
+    return update(user, id, { status }, { version, appendNote: note || undefined })
   }
+}
+
+/** The pass's notes with one more line: "[Thu 3 Dec 10:14 CST, Wade Ostrowski] text". */
+export function appendNote(notes: string, user: Pick<SessionUser, 'name'>, text: string, timeZone: string, nowMs = Date.now()): string {
+  const line = `[${localLabel(nowMs, timeZone)}, ${user.name}] ${text.trim()}`
+  const joined = notes.trim() ? `${notes.trim()}\n${line}` : line
+  return joined.length > 4000 ? joined.slice(joined.length - 4000) : joined
 }
 export type PassesService = ReturnType<typeof createPassesService>

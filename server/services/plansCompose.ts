@@ -82,6 +82,14 @@ export function compactRange(startMs: number, endMs: number, zone: string): stri
   return `${head}-${e.toFormat('ccc HH:mm')}`
 }
 
+/** "Planned", "Confirmed", "Started Thu 08:05", "Done Thu 14:10": how a pass stands, for the farm. */
+export function planStatus(p: { status: string; statusChangedAt: Date | null }, zone: string): string {
+  const at = p.statusChangedAt ? ` ${dt(p.statusChangedAt.getTime(), zone).toFormat('ccc HH:mm')}` : ''
+  if (p.status === 'done') return `Done${at}`
+  if (p.status === 'started') return `Started${at}`
+  return p.status === 'confirmed' ? 'Confirmed' : 'Planned'
+}
+
 const slug = (name: string) => name.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-+|-+$/g, '') || 'farm'
 
 export async function composePlan(repos: Repositories, farmId: number, weekStart: string, note: string): Promise<ComposedPlan> {
@@ -91,7 +99,7 @@ export async function composePlan(repos: Repositories, farmId: number, weekStart
   const span = weekSpan(weekStart, zone)
   const [business, passes, fields, workTypes] = await Promise.all([
     repos.business.get(),
-    repos.passes.list({ farmId, statuses: activePassStatuses, from: new Date(span.startMs), to: new Date(span.endMs) }),
+    repos.passes.list({ farmId, statuses: [...activePassStatuses, 'done'], from: new Date(span.startMs), to: new Date(span.endMs) }),
     repos.fields.listByFarm(farmId),
     repos.workTypes.list({ onlyActive: true }),
   ])
@@ -112,7 +120,7 @@ export async function composePlan(repos: Repositories, farmId: number, weekStart
     const e = dt(endMs, zone)
     const time = `${s.toFormat('HH:mm')}-${e.hasSame(s, 'day') ? e.toFormat('HH:mm') : e.toFormat('ccc HH:mm')}`
     const crew = p.machineName ? `${p.machineName}${p.crew ? `, ${p.crew}` : ''}` : 'Not assigned yet'
-    const line = { time, field: p.fieldName, workType: p.workTypeName, crew, status: p.status === 'confirmed' ? 'Confirmed' : 'Planned', atRisk: p.atRisk }
+    const line = { time, field: p.fieldName, workType: p.workTypeName, crew, status: planStatus(p, zone), atRisk: p.atRisk }
     // A pass that began before the week (overlapping Monday morning) goes under Monday.
     days[Math.max(0, Math.min(6, index))].passes.push(line)
     if (p.atRisk) {

@@ -22,3 +22,5 @@ export {
   overlaps,
 } from './time'
 export type { TimeSpan } from './time'
+export { openSpan, workable } from './crew'
+export type { OpenSpan } from './crew'

@@ -84,7 +84,7 @@ export const UNUSUAL_AREA_LIMITS_HA = { min: 0.05, max: 2000 } as const
 // `file`; then POST /api/farms/:id/fields/import, multipart `file` + `options` (JSON text
 // of fieldImportOptionsSchema). The server keeps nothing between the two steps.
 
-export const boundaryFileFormats = ['geojson', 'kml', 'kmz', 'shapefile'] as const
+export const boundaryFileFormats = ['geojson', 'kml', 'kmz', 'shapefile', 'isoxml'] as const
 export type BoundaryFileFormat = (typeof boundaryFileFormats)[number]
 
 /** One polygon feature found in an uploaded file. */

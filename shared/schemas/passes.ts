@@ -5,12 +5,19 @@ import { z } from 'zod'
 import { idSchema } from './common'
 import type { HourFigures } from './forecast'
 
-export const passStatuses = ['planned', 'confirmed', 'done', 'cancelled'] as const
+/**
+ * planned (booked), confirmed (booked and agreed with the farm), started (the crew is on
+ * the field), done, cancelled.
+ */
+export const passStatuses = ['planned', 'confirmed', 'started', 'done', 'cancelled'] as const
 export type PassStatus = (typeof passStatuses)[number]
 export const passStatusSchema = z.enum(passStatuses, { error: `Use one of: ${passStatuses.join(', ')}` })
 
-/** Passes that still hold a machine and are checked against the forecast. */
-export const activePassStatuses: readonly PassStatus[] = ['planned', 'confirmed']
+/** Passes that still hold a machine (and are listed in plans and calendar feeds). */
+export const activePassStatuses: readonly PassStatus[] = ['planned', 'confirmed', 'started']
+
+/** Passes not yet under way, checked against the forecast (at risk, suggestions). */
+export const upcomingPassStatuses: readonly PassStatus[] = ['planned', 'confirmed']
 
 const isoTime = z.iso.datetime({ offset: true, error: 'Use an ISO 8601 time such as 2026-12-03T14:00:00Z' })
 
@@ -47,6 +54,8 @@ export const passPatchSchema = z.object({
   durationMin: durationMinSchema.nullable().optional(),
   status: passStatusSchema.optional(),
   notes: notesSchema.optional(),
+  /** the version the change was made from: 409 when the pass has changed since */
+  version: z.number().int().positive().optional(),
 })
 export type PassPatch = z.infer<typeof passPatchSchema>
 
@@ -71,6 +80,12 @@ export interface Pass {
   end: string
   durationMin: number
   status: PassStatus
+  /** when and by whom the status was last set (null for passes older than that record) */
+  statusChangedAt: string | null
+  statusChangedBy: number | null
+  statusChangedByName: string | null
+  /** bumped by every change a person makes; send it back to refuse a change made from an older copy */
+  version: number
   atRisk: boolean
   atRiskReason: string | null
   /** start of the best window for the same work, duration and machine when at risk */
@@ -266,3 +281,23 @@ export interface CreatedCalendarToken extends CalendarToken {
   token: string
   url: string
 }
+
+/**
+ * POST /api/passes/:id/status: the crew (or the office) marks a pass started, done,
+ * planned again or cancelled, optionally with a note. With `version`, the change is
+ * refused (409) when the pass has changed since that version was read, e.g. a change
+ * queued in a cab without signal.
+ */
+export const passStatusChangeSchema = z.object({
+  status: passStatusSchema,
+  version: z.number().int().positive().optional(),
+  note: z.string().trim().max(1000, 'Use at most 1000 characters').default(''),
+})
+export type PassStatusChange = z.infer<typeof passStatusChangeSchema>
+
+/** POST /api/passes/:id/notes: a note from the field, added to the pass's notes. */
+export const passNoteSchema = z.object({
+  text: z.string().trim().min(1, 'Write the note').max(1000, 'Use at most 1000 characters'),
+  version: z.number().int().positive().optional(),
+})
+export type PassNote = z.infer<typeof passNoteSchema>

@@ -78,10 +78,13 @@ const machineFields = {
   rateHaPerH: z.number().positive('The work rate must be above 0').max(1000, 'The work rate must be at most 1000 ha/h').nullable(),
   active: z.boolean(),
   notes: z.string().trim().max(1000, 'Use at most 1000 characters'),
+  /** the user who runs the machine: its passes show in that user's cab view */
+  operatorUserId: z.number().int().positive().nullable(),
 }
 
 export const machineInputSchema = z.object({
   ...machineFields,
+  operatorUserId: machineFields.operatorUserId.default(null),
   crew: machineFields.crew.default(''),
   rateHaPerH: machineFields.rateHaPerH.default(null),
   active: machineFields.active.default(true),

@@ -1,5 +1,5 @@
 import type { Field, FieldInput, FieldPatch } from '@shared/schemas/fields'
-import { http } from './http'
+import { buildUrl, http } from './http'
 
 /** The fields of a farm (every field; a farm has tens, not thousands). */
 export const listFields = (farmId: number) => http.get<Field[] | { items: Field[] }>(`/farms/${farmId}/fields`).then(itemsOf)
@@ -21,3 +21,6 @@ export const deleteField = (id: number) => http.delete(`/fields/${id}`)
 export function itemsOf<T>(body: T[] | { items: T[] }): T[] {
   return Array.isArray(body) ? body : body.items
 }
+
+/** Address of a farm's ISO 11783-10 task data (a zip with TASKDATA/TASKDATA.XML) for farm terminals. */
+export const taskDataUrl = (farmId: number) => buildUrl(`/farms/${farmId}/taskdata.zip`)

@@ -46,6 +46,8 @@ export interface RequestOptions {
   quiet?: number[]
   /** Do not send the user to sign-in on 401 (used by the session check itself). */
   allowAnonymous?: boolean
+  /** No toast when the server cannot be reached (pages that work offline say so themselves). */
+  quietNetwork?: boolean
 }
 
 type UnauthorizedHandler = () => void
@@ -110,7 +112,7 @@ async function request<T>(method: string, path: string, options: RequestOptions 
     })
   } catch {
     const error = new ApiError(0, 'network', 'Cannot reach the Skyfurrow server. Check the connection and try again.')
-    message.error(error.message, config.messageDurationS)
+    if (!options.quietNetwork && !options.quiet?.includes(0)) message.error(error.message, config.messageDurationS)
     throw error
   }
   if (!response.ok) {

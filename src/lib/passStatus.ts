@@ -4,6 +4,7 @@ import type { PassStatus } from '@shared/schemas/passes'
 export const passStatusLabels: Record<PassStatus, string> = {
   planned: 'Planned',
   confirmed: 'Confirmed',
+  started: 'Started',
   done: 'Done',
   cancelled: 'Cancelled',
 }
@@ -12,6 +13,7 @@ export const passStatusLabels: Record<PassStatus, string> = {
 export const passStatusColours: Record<PassStatus, string> = {
   planned: 'default',
   confirmed: 'geekblue',
+  started: 'gold',
   done: 'default',
   cancelled: '',
 }

@@ -20,6 +20,7 @@ const mainLinks: (NavLink & { name: NavPageName })[] = [
   { name: RouteNames.outlook, label: 'Outlook', hint: 'Precision week ahead' },
   { name: RouteNames.fields, label: 'Fields', hint: 'Boundaries and tree lines' },
   { name: RouteNames.passes, label: 'Passes', hint: 'Scheduled field work' },
+  { name: RouteNames.cab, label: 'In the cab', hint: 'My passes, also offline' },
   { name: RouteNames.plans, label: 'Plans', hint: 'Weekly e-mails to clients' },
   { name: RouteNames.orbits, label: 'Orbits', hint: 'Satellite data and outages' },
 ]

@@ -2,6 +2,7 @@ import { computed, ref } from 'vue'
 import { defineStore } from 'pinia'
 import type { Role, SessionUser, SignInInput, UpdateProfileInput } from '@shared/schemas'
 import * as authApi from '@/api/auth'
+import { forgetCachedSession } from '@/lib/cachedSession'
 
 /** The signed-in user and what their role allows. One store, used by the router guard. */
 export const useSessionStore = defineStore('session', () => {
@@ -52,12 +53,14 @@ export const useSessionStore = defineStore('session', () => {
       await authApi.signOut()
     } finally {
       user.value = null
+      await forgetCachedSession()
     }
   }
 
   async function signOutEverywhere(): Promise<void> {
     await authApi.signOutEverywhere()
     user.value = null
+    await forgetCachedSession()
   }
 
   async function updateProfile(input: UpdateProfileInput): Promise<void> {

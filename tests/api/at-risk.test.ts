@@ -44,12 +44,18 @@ function nightStretch(): number {
   throw new Error('no night stretch found')
 }
 
+/** Offset (h) of the first 3-hour stretch from `from` whose hours are all night (or all day) at the field. */
+function stretchFrom(from: number, night: boolean): number {
+  for (let h = from; h < HOURS - 3; h++) if ([0, 1, 2].every((k) => isNightHour(at(h + k), centroid) === night)) return h
+  throw new Error(`no ${night ? 'night' : 'day'} stretch from hour ${from}`)
+}
+
 describe('passes at risk', () => {
   it('flags a pass whose hour closes, with the reason and a suggested window', async () => {
     const m = await makeMachine(server)
     const n = nightStretch()
-    // The pass runs at night, so night windows may be suggested: the suggestion depends on
-    // the forecast and the machine's bookings only.
+    // The pass runs at night, so when no daylight window holds a night window may be
+    // suggested: here the only free Clear stretch (hours 8-10) is the answer either way.
     const pass = await w.crew.post('/api/passes', { fieldId: field.id, workTypeId: w.workTypes.planting.id, machineId: m.id, start: iso(n), durationMin: 180 })
     expect(pass.status).toBe(201)
     expect(pass.body.atRisk).toBe(false)
@@ -108,5 +114,22 @@ describe('passes at risk', () => {
     expect(cancelled.body).toMatchObject({ status: 'cancelled', atRisk: false, atRiskReason: null })
     await recompute({ [w.workTypes.planting.id]: closed.join(''), [w.workTypes.spraying.id]: closed.join('') })
     expect((await w.crew.get(`/api/passes/${res.body.id}`)).body.atRisk).toBe(false)
+  })
+
+  it('suggests daylight by default, even for a pass booked at night, while a daylight window exists', async () => {
+    const m = await makeMachine(server)
+    // The sun decides day and night at the field's centroid (shared/planning/night.ts, after suncalc).
+    const p = stretchFrom(24, true)
+    const earlyNight = stretchFrom(p + 3, true)
+    const day = stretchFrom(earlyNight + 3, false)
+    const planting = [...'X'.repeat(HOURS)]
+    for (const h of [p, p + 2, earlyNight, earlyNight + 1, earlyNight + 2, day, day + 1, day + 2]) planting[h] = 'C'
+    await recompute({ [w.workTypes.planting.id]: planting.join(''), [w.workTypes.spraying.id]: 'C'.repeat(HOURS) })
+    const res = await w.crew.post('/api/passes', { fieldId: field.id, workTypeId: w.workTypes.planting.id, machineId: m.id, start: iso(p), durationMin: 180 })
+    expect(res.status).toBe(201)
+    expect(res.body.atRisk).toBe(true)
+    // The earlier night window holds too, but the daylight one is proposed.
+    expect(res.body.suggestedStart).toBe(iso(day))
+    await w.crew.post(`/api/passes/${res.body.id}/cancel`)
   })
 })

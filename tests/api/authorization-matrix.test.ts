@@ -262,6 +262,11 @@ const matrix: Record<string, Row> = {
   'PATCH /api/passes/:id': { call: async (f) => ({ params: { id: await throwawayPass(f) }, body: { notes: 'matrix' } }), expect: farmEditors(200) },
   'POST /api/passes/:id/cancel': { call: async (f) => ({ params: { id: await throwawayPass(f) } }), expect: farmEditors(200) },
   'POST /api/passes/:id/done': { call: async (f) => ({ params: { id: await throwawayPass(f) } }), expect: farmEditors(200) },
+  'POST /api/passes/:id/status': { call: async (f) => ({ params: { id: await throwawayPass(f) }, body: { status: 'started' } }), expect: farmEditors(200) },
+  'POST /api/passes/:id/notes': { call: async (f) => ({ params: { id: await throwawayPass(f) }, body: { text: 'matrix' } }), expect: farmEditors(200) },
+  'GET /api/crew/week': { expect: farmEditors(200) },
+  'GET /api/farms/:id/taskdata.zip': { call: (f) => ({ params: { id: f.farmId } }), expect: { ...signedIn(200), otherClient: 404 } },
+  'GET /api/farms/:id/taskdata.xml': { call: (f) => ({ params: { id: f.farmId } }), expect: { ...signedIn(200), otherClient: 404 } },
   'GET /api/fields/:id/hour-detail': {
     call: async (f) => ({ params: { id: await throwawayField(f) }, query: `hour=${new Date(Math.floor(Date.now() / 3_600_000) * 3_600_000).toISOString()}` }),
     expect: { ...signedIn(200), otherClient: 404 },

@@ -140,7 +140,7 @@ describe('bad and hostile files get a clear 4xx and change nothing', () => {
     ['a zip expanding to 60 MB', () => zipBomb(60), 413, /expand to more than 50 MB/],
     ['a zip that lies about its sizes', () => lyingZip(), 413, /expands beyond its declared size/],
     ['a zip with a ../ path', () => traversalZip(), 400, /unsafe path \("\.\.\/doc\.kml"\)/],
-    ['a zip without boundary files', () => zipOf({ 'notes.txt': 'x', 'map.pdf': 'y' }), 400, /no \.shp, \.kml or \.geojson file \(it holds notes\.txt, map\.pdf\)/],
+    ['a zip without boundary files', () => zipOf({ 'notes.txt': 'x', 'map.pdf': 'y' }), 400, /no \.shp, \.kml, \.geojson or TASKDATA\.XML file \(it holds notes\.txt, map\.pdf\)/],
     ['an empty zip', () => rawZip([]), 400, /zip file is empty/],
     ['a truncated zip', async () => (await kmzFile()).subarray(0, 40), 400, /damaged or incomplete/],
   ]

@@ -10,12 +10,18 @@ export interface NewMachine {
   rateHaPerH: number | null
   active: boolean
   notes: string
+  operatorUserId?: number | null
 }
 
 export function machinesRepository(db: DbOrTx) {
   return {
     async list(): Promise<MachineRow[]> {
       return db.select().from(machines).orderBy(asc(machines.name), asc(machines.id))
+    },
+
+    /** The machines this user runs (their passes show in the user's cab view). */
+    async listByOperator(userId: number): Promise<MachineRow[]> {
+      return db.select().from(machines).where(eq(machines.operatorUserId, userId)).orderBy(asc(machines.name))
     },
 
     async findById(id: number): Promise<MachineRow | null> {

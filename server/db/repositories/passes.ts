@@ -1,9 +1,10 @@
 // Queries on passes: lists with their field, farm, work type and machine; the locking read
 // that keeps a machine from being booked twice; the at-risk columns.
 import { and, asc, eq, gt, inArray, lt, ne, sql, type SQL } from 'drizzle-orm'
-import type { PassStatus } from '../../../shared/schemas/passes.ts'
+import { alias } from 'drizzle-orm/mysql-core'
+import { activePassStatuses, type PassStatus } from '../../../shared/schemas/passes.ts'
 import type { DbOrTx } from '../index.ts'
-import { farms } from '../schema.ts'
+import { farms, users } from '../schema.ts'
 import { fields, machines, passes, workTypes, type PassRow } from '../schema-planning.ts'
 
 export interface NewPass {
@@ -18,6 +19,8 @@ export interface NewPass {
   suggestedStartAt: Date | null
   notes: string
   createdBy: number | null
+  statusChangedAt?: Date | null
+  statusChangedBy?: number | null
 }
 
 /** A pass with the names and settings pages and messages need. */
@@ -31,6 +34,8 @@ export interface PassDetailRow extends PassRow {
   requireN1: boolean
   machineName: string | null
   crew: string | null
+  machineOperatorId: number | null
+  statusChangedByName: string | null
 }
 
 export interface PassFilter {
@@ -39,6 +44,8 @@ export interface PassFilter {
   farmId?: number
   fieldId?: number
   machineId?: number
+  /** passes on the machines this user operates */
+  operatorUserId?: number
   /** passes overlapping [from, to) */
   from?: Date
   to?: Date
@@ -65,6 +72,9 @@ function overlapping(from: Date | undefined, to: Date | undefined): SQL[] {
   return out
 }
 
+/** The user who last set a pass's status. */
+const statusUser = alias(users, 'status_user')
+
 const detailColumns = {
   pass: passes,
   farmId: fields.farmId,
@@ -76,6 +86,8 @@ const detailColumns = {
   requireN1: workTypes.requireN1,
   machineName: machines.name,
   crew: machines.crew,
+  machineOperatorId: machines.operatorUserId,
+  statusChangedByName: statusUser.name,
 }
 
 type DetailSelect = {
@@ -89,6 +101,8 @@ type DetailSelect = {
   requireN1: boolean
   machineName: string | null
   crew: string | null
+  machineOperatorId: number | null
+  statusChangedByName: string | null
 }
 
 const flatten = ({ pass, ...rest }: DetailSelect): PassDetailRow => ({ ...pass, ...rest })
@@ -102,6 +116,7 @@ export function passesRepository(db: DbOrTx) {
       .innerJoin(farms, eq(farms.id, fields.farmId))
       .innerJoin(workTypes, eq(workTypes.id, passes.workTypeId))
       .leftJoin(machines, eq(machines.id, passes.machineId))
+      .leftJoin(statusUser, eq(statusUser.id, passes.statusChangedBy))
       .where(where)
   }
 
@@ -120,6 +135,7 @@ export function passesRepository(db: DbOrTx) {
       if (filter.farmId) where.push(eq(fields.farmId, filter.farmId))
       if (filter.fieldId) where.push(eq(passes.fieldId, filter.fieldId))
       if (filter.machineId) where.push(eq(passes.machineId, filter.machineId))
+      if (filter.operatorUserId) where.push(eq(machines.operatorUserId, filter.operatorUserId))
       if (filter.statuses) where.push(inArray(passes.status, [...filter.statuses]))
       if (filter.atRisk !== undefined) where.push(eq(passes.atRisk, filter.atRisk))
       const rows = await detailQuery(where.length ? and(...where) : undefined)
@@ -138,14 +154,14 @@ export function passesRepository(db: DbOrTx) {
     },
 
     /**
-     * The machine's planned or confirmed passes overlapping [from, to), read with
+     * The machine's planned, confirmed or started passes overlapping [from, to), read with
      * SELECT ... FOR UPDATE (a locking read sees the latest committed bookings and locks
      * them and the index range until the transaction ends). Call inside a transaction.
      */
     async lockMachineBookings(machineId: number, from: Date, to: Date, exceptPassId?: number): Promise<PassRow[]> {
       const where = [
         eq(passes.machineId, machineId),
-        inArray(passes.status, ['planned', 'confirmed']),
+        inArray(passes.status, [...activePassStatuses]),
         ...overlapping(from, to),
       ]
       if (exceptPassId) where.push(ne(passes.id, exceptPassId))
@@ -157,9 +173,9 @@ export function passesRepository(db: DbOrTx) {
         .for('update')
     },
 
-    /** Spans the machine is booked (planned or confirmed) overlapping [from, to). */
+    /** Spans the machine is booked (planned, confirmed or started) overlapping [from, to). */
     async machineBusy(machineId: number, from: Date, to: Date, exceptPassId?: number): Promise<Array<{ startMs: number; endMs: number }>> {
-      const where = [eq(passes.machineId, machineId), inArray(passes.status, ['planned', 'confirmed']), ...overlapping(from, to)]
+      const where = [eq(passes.machineId, machineId), inArray(passes.status, [...activePassStatuses]), ...overlapping(from, to)]
       if (exceptPassId) where.push(ne(passes.id, exceptPassId))
       const rows = await db
         .select({ startAt: passes.startAt, durationMin: passes.durationMin })
@@ -173,8 +189,18 @@ export function passesRepository(db: DbOrTx) {
       return result.insertId
     },
 
+    /** A change a person made: updated_at moves and the version goes up by one. */
     async update(id: number, changes: Partial<NewPass>): Promise<void> {
-      await db.update(passes).set({ ...changes, updatedAt: new Date() }).where(eq(passes.id, id))
+      await db
+        .update(passes)
+        .set({ ...changes, version: sql`${passes.version} + 1`, updatedAt: new Date() })
+        .where(eq(passes.id, id))
+    },
+
+    /** Locks the pass row until the transaction ends; null when there is no such pass. */
+    async lockPass(id: number): Promise<{ id: number; version: number } | null> {
+      const [row] = await db.select({ id: passes.id, version: passes.version }).from(passes).where(eq(passes.id, id)).for('update')
+      return row ?? null
     },
 
     /**

@@ -22,6 +22,12 @@ export const workRoutes: RouteRecordRaw[] = [
     meta: { title: 'Passes', roles: pageRoles[RouteNames.passes] },
   },
   {
+    path: '/cab',
+    name: RouteNames.cab,
+    component: () => import('@/views/CabView.vue'),
+    meta: { title: 'In the cab', roles: pageRoles[RouteNames.cab] },
+  },
+  {
     path: '/plans',
     name: RouteNames.plans,
     component: () => import('@/views/PlansView.vue'),

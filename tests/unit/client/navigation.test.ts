@@ -13,12 +13,12 @@ describe('navigation by role', () => {
   })
 
   it('shows a contractor the Outlook, Fields and Passes', () => {
-    expect(labels('contractor', true)).toEqual(['Outlook', 'Fields', 'Passes'])
+    expect(labels('contractor', true)).toEqual(['Outlook', 'Fields', 'Passes', 'In the cab'])
   })
 
   it('shows office staff everything except farm and user management', () => {
     expect(labels('office', true)).toEqual([
-      'Outlook', 'Fields', 'Passes', 'Plans', 'Orbits', 'Work types', 'Service levels', 'Machines', 'Forecast jobs', 'Mailbox',
+      'Outlook', 'Fields', 'Passes', 'In the cab', 'Plans', 'Orbits', 'Work types', 'Service levels', 'Machines', 'Forecast jobs', 'Mailbox',
     ])
   })
 
@@ -26,7 +26,7 @@ describe('navigation by role', () => {
     const sections = navigationFor('admin', { fakeMailbox: true })
     expect(sections.map((s) => s.heading)).toEqual([null, 'Admin', 'Local mail'])
     expect(labels('admin', true)).toEqual([
-      'Outlook', 'Fields', 'Passes', 'Plans', 'Orbits', 'Farms', 'Users', 'Work types', 'Service levels', 'Machines', 'Forecast jobs',
+      'Outlook', 'Fields', 'Passes', 'In the cab', 'Plans', 'Orbits', 'Farms', 'Users', 'Work types', 'Service levels', 'Machines', 'Forecast jobs',
       'Mailbox',
     ])
   })
