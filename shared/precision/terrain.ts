@@ -22,7 +22,8 @@
  * Bins. Rays leave the point every 0.5 deg of azimuth; bin k (azimuths [k, k+1)) takes the
  * highest of the rays at k, k + 0.5 and k + 1, so a ridge square to the point is caught
  * at its nearest distance. Along a ray the ground is read by bilinear interpolation every
- * `cellM` out to `maxDistanceM`; a ray stops at the edge of the grid; nodes without data
+ * `cellM` for the first 200 nodes, then every d / 200 in whole nodes (about 0.3 deg of
+ * arc, finer than the 0.5 deg between rays; common practice), out to `maxDistanceM`; a ray stops at the edge of the grid; nodes without data
  * (NaN) are skipped. A ray also stops once even the highest node of the grid can no
  * longer rise above the angle already found (the bound falls with distance).
  * Angles below the horizontal count as 0 (nothing blocked), as in the obstruction mask.
@@ -103,6 +104,8 @@ export function terrainGroundM(grid: TerrainGrid, point: { latDeg: number; lonDe
 }
 
 const RAYS = 720
+/** Past STEP_PER_DISTANCE nodes from the point, the step along a ray grows with distance (d / 200, whole nodes). */
+const STEP_PER_DISTANCE = 200
 
 /**
  * Terrain horizon of one point into `out` (360 entries, deg): entry k = highest terrain
@@ -149,7 +152,7 @@ export function terrainHorizonInto(
     const dx = Math.sin(az * DEG)
     const dy = -Math.cos(az * DEG)
     let best = -Infinity
-    for (let s = 1; s <= steps; s++) {
+    for (let s = 1; s <= steps; s += s < STEP_PER_DISTANCE ? 1 : Math.floor(s / STEP_PER_DISTANCE)) {
       const d = s * cell
       const drop = c * d * d
       // The highest node cannot rise above the best angle beyond here: stop.
