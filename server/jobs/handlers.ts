@@ -10,6 +10,7 @@ import { feedUrlOf, fetchOrbitFeed } from '../services/orbitFeed.ts'
 import { enqueueForecast, enqueueJob, withDeadlockRetry } from './enqueue.ts'
 import { engineTask, inputsVersion, type EngineSettings } from './inputs.ts'
 import { loadOrbitInputs } from './orbitInputs.ts'
+import { boundaryGeometry, terrainGridFor, terrainOfField, terrainVersionOf } from '../terrain/store.ts'
 import type { JobContext, JobHandler, JobOutcome } from './runner.ts'
 
 /** Elevation mask of the stored forecasts (deg), the engine's default. */
@@ -55,10 +56,11 @@ export async function forecastInputsOf(store: Store, fieldId: number, settings: 
   const repos = store.repos
   const field = await repos.forecasts.fieldWithSigma(fieldId)
   if (!field) return null
-  const [obstructions, workTypes, orbits] = await Promise.all([
+  const [obstructions, workTypes, orbits, terrain] = await Promise.all([
     repos.forecasts.obstructionsOfFarm(field.farmId),
     repos.forecasts.activeWorkTypes(),
     loadOrbitInputs(store),
+    terrainOfField(repos, field),
   ])
   const window = forecastWindow(nowMs, FORECAST_WINDOW_HOURS)
   const version = inputsVersion({
@@ -70,8 +72,9 @@ export async function forecastInputsOf(store: Store, fieldId: number, settings: 
     windowStartMs: window.startMs,
     windowHours: window.hours,
     settings,
+    terrain: terrainVersionOf(terrain),
   })
-  return { field, obstructions, workTypes, orbits, window, version }
+  return { field, obstructions, workTypes, orbits, window, version, terrain }
 }
 
 export const forecastHandler: JobHandler = async (ctx: JobContext): Promise<JobOutcome> => {
@@ -103,6 +106,7 @@ export const forecastHandler: JobHandler = async (ctx: JobContext): Promise<JobO
     windowStartMs: window.startMs,
     windowHours: window.hours,
     settings,
+    terrain: inputs.terrain ? await terrainGridFor(store.repos, inputs.terrain, boundaryGeometry(field.boundary)) : null,
   })
   const result = await ctx.pool.run(task, (f) => ctx.progress(0.05 + 0.9 * f))
   if (ctx.signal.aborted) throw ctx.signal.reason

@@ -15,6 +15,7 @@ import { inputsVersion } from './inputs.ts'
 import { loadOrbitInputs } from './orbitInputs.ts'
 import { JobRunner, type JobHandler } from './runner.ts'
 import { registerForecastTriggers } from './triggers.ts'
+import { terrainOfField, terrainVersionOf } from '../terrain/store.ts'
 
 export interface JobsHandle {
   runner: JobRunner | null
@@ -50,6 +51,7 @@ export async function stalenessSweep(store: Store, config: Config, nowMs = Date.
       windowStartMs: window.startMs,
       windowHours: window.hours,
       settings,
+      terrain: terrainVersionOf(await terrainOfField(store.repos, field)),
     })
     const m = meta.get(field.id)
     const current =

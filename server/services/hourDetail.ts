@@ -14,6 +14,8 @@ import { badRequest, notFound } from '../http/errors.ts'
 import { engineSettings } from '../jobs/handlers.ts'
 import { engineWorkTypes, obstructionCollection, outagesInWindow } from '../jobs/inputs.ts'
 import { loadOrbitInputs } from '../jobs/orbitInputs.ts'
+import { TERRAIN_SETTINGS } from '../../shared/schemas/terrain.ts'
+import { boundaryGeometry, terrainGridFor, terrainOfField } from '../terrain/store.ts'
 import type { ServiceContext } from './context.ts'
 import { toForecastHour } from './forecasts.ts'
 
@@ -65,12 +67,15 @@ export function createHourDetailService(ctx: ServiceContext) {
       const settings = engineSettings(config)
       const obstructions = obstructionCollection(obstructionRows)
       const outages = outagesInWindow(orbits.outages, hourStart - HOUR_MS, hourStart + 2 * HOUR_MS)
+      const terrainRow = await terrainOfField(store.repos, field)
+      const terrainGrid = terrainRow ? await terrainGridFor(store.repos, terrainRow, boundaryGeometry(field.boundary)) : null
       const common = {
         satellites: orbits.satellites,
         outages,
         obstructions,
         antennaHeightM: field.antennaHeightM,
         maskDeg: settings.maskDeg,
+        terrain: terrainGrid ? { grid: terrainGrid, options: TERRAIN_SETTINGS } : null,
       }
       const result = forecastField({
         ...common,
@@ -119,6 +124,7 @@ export function createHourDetailService(ctx: ServiceContext) {
             atMs: sky.atMs,
             maskDeg: sky.maskDeg,
             horizonMaskDeg: sky.horizonMaskDeg,
+            terrainHorizonDeg: sky.terrainHorizonDeg,
             satellites: sky.satellites.map((s) => ({
               id: s.id,
               system: s.system,

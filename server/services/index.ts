@@ -22,6 +22,7 @@ import { createServiceLevelsService } from './serviceLevels.ts'
 import { createWorkTypesService } from './workTypes.ts'
 import { createMetaService } from './meta.ts'
 import { createUsersService } from './users.ts'
+import { createTerrainService } from './terrain.ts'
 
 export function createServices(ctx: ServiceContext) {
   return {
@@ -48,6 +49,7 @@ export function createServices(ctx: ServiceContext) {
     calendar: createCalendarService(ctx),
     atRisk: createAtRiskService(ctx),
     exports: createExportsService(ctx),
+    terrain: createTerrainService(ctx),
   }
 }
 export type Services = ReturnType<typeof createServices>

@@ -244,7 +244,7 @@ function foliageSets(shapes: readonly ObstructionShape[], epochs: Float64Array):
 function fieldTerrain(input: SkySettings, points: readonly SamplePoint[], antennaHeightM: number): Float64Array | null {
   const t = input.terrain
   if (!t) return null
-  if (t.pointHorizonsDeg && t.pointHorizonsDeg.length === points.length * 360) return t.pointHorizonsDeg
+  if (t.pointHorizonsDeg && t.pointHorizonsDeg.length === points.length * 360) return Float64Array.from(t.pointHorizonsDeg)
   if (!t.grid) return null
   return terrainHorizons(t.grid, points, antennaHeightM, t.options)
 }

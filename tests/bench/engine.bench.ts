@@ -61,7 +61,7 @@ function engineRuns(label: string, sats: Satellite[], propagation?: PropagationO
   for (let i = 0; i < WARMUPS - 1; i++) run(sats, propagation)
   const runs = Array.from({ length: RUNS }, () => run(sats, propagation))
   const pick = (f: (r: { result: FieldForecast; wallMs: number; cpuMs: number }) => number) => median(runs.map(f))
-  const st = (k: keyof NonNullable<FieldForecast['stageTimes']>) => pick((r) => r.result.stageTimes![k])
+  const st = (k: keyof NonNullable<FieldForecast['stageTimes']>) => pick((r) => r.result.stageTimes![k] ?? 0)
   const wall = pick((r) => r.wallMs)
   const cpu = pick((r) => r.cpuMs)
   const r0 = runs[0].result

@@ -18,6 +18,7 @@ import { serviceLevelsRepository } from './serviceLevels.ts'
 import { workTypesRepository } from './workTypes.ts'
 import { sessionsRepository } from './sessions.ts'
 import { tokensRepository } from './tokens.ts'
+import { terrainRepository } from './terrain.ts'
 import { usersRepository } from './users.ts'
 
 export function createRepositories(db: DbOrTx) {
@@ -40,6 +41,7 @@ export function createRepositories(db: DbOrTx) {
     obstructions: obstructionsRepository(db),
     orbits: orbitsRepository(db),
     outages: outagesRepository(db),
+    terrain: terrainRepository(db),
   }
 }
 export type Repositories = ReturnType<typeof createRepositories>
