@@ -9,6 +9,7 @@ import { createStore } from '../server/db/repositories/index.ts'
 import { seedFields } from './fields.ts'
 import { seedPasses } from './passes.ts'
 import { seedPlanning } from './planning.ts'
+import { seedHillFarm } from './terrain.ts'
 import { DEMO_PASSWORD, demoBusinessName, demoConstellations, demoFarms, demoUsers } from './scenario.ts'
 
 export interface SeedResult {
@@ -23,6 +24,8 @@ export async function seedDemo(db: Database): Promise<SeedResult> {
   const result = await seedPeopleAndFarms(db)
   // The demo farms' fields and obstructions (each farm only while it has none).
   await seedFields(db)
+  // The hill-country farm with its elevation model (written with the first seed only).
+  if (result.seeded) await seedHillFarm(db)
   // Last: demo passes in the coming days on those fields (only while none is upcoming).
   await seedPasses(db)
   return result

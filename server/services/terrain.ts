@@ -11,9 +11,9 @@ import type { Repositories } from '../db/repositories/index.ts'
 import type { ElevationModelRow } from '../db/schema-terrain.ts'
 import { emit } from '../events.ts'
 import { badRequest, notFound } from '../http/errors.ts'
-import { boxesOverlap, geometryBox, modelBounds, modelCellM, packHeights } from '../terrain/grid.ts'
-import { readElevationModel, TerrainFileError } from '../terrain/readers.ts'
-import { modelCovering, modelSha, rowBounds, terrainGridFor } from '../terrain/store.ts'
+import { boxesOverlap, geometryBox, modelCellM } from '../terrain/grid.ts'
+import { readElevationModel, TerrainFileError, type ElevationModel } from '../terrain/readers.ts'
+import { modelCovering, modelRecord, rowBounds, terrainGridFor, type ModelRecord } from '../terrain/store.ts'
 import type { ServiceContext } from './context.ts'
 
 export interface UploadedFile {
@@ -47,6 +47,16 @@ async function info(repos: Repositories, row: ElevationModelRow): Promise<Elevat
   }
 }
 
+/** The model checked and packed for storage; a 400 naming what is wrong. */
+function modelRecordOrError(model: ElevationModel): ModelRecord {
+  try {
+    return modelRecord(model)
+  } catch (e) {
+    if (e instanceof TerrainFileError) throw badRequest(e.message, { file: e.message })
+    throw e
+  }
+}
+
 export function createTerrainService(ctx: ServiceContext) {
   const { store } = ctx
 
@@ -74,25 +84,8 @@ export function createTerrainService(ctx: ServiceContext) {
         if (e instanceof TerrainFileError) throw badRequest(e.message, { file: e.message })
         throw e
       }
-      let valid = 0
-      let minH = Infinity
-      let maxH = -Infinity
-      for (const v of model.heightsM) {
-        if (v !== v) continue
-        valid++
-        if (v < minH) minH = v
-        if (v > maxH) maxH = v
-      }
-      if (valid === 0) throw badRequest('Every cell of the elevation model is nodata.', { file: 'No heights.' })
-      let bounds
-      try {
-        bounds = modelBounds(model)
-      } catch (e) {
-        throw badRequest(`The elevation model's coordinates cannot be transformed to longitude/latitude (${(e as Error).message}).`, { file: 'Bad coordinates.' })
-      }
-      if (!(bounds.minLatDeg >= -90 && bounds.maxLatDeg <= 90 && bounds.minLonDeg >= -180 && bounds.maxLonDeg <= 180)) {
-        throw badRequest('The elevation model lies outside longitude -180..180 / latitude -90..90: check its coordinate system.', { file: 'Bad coordinates.' })
-      }
+      const record = modelRecordOrError(model)
+      const bounds = record.bounds
       const fields = await store.repos.fields.listByFarm(farmId)
       if (fields.length === 0) throw badRequest('The farm has no fields yet: draw or import a field before uploading an elevation model.', { file: 'No fields.' })
       const covered = fields.filter((f) => boxesOverlap(bounds, geometryBox(geometryOf(f.boundary))))
@@ -101,30 +94,8 @@ export function createTerrainService(ctx: ServiceContext) {
         const msg = `The elevation model (longitude ${b.minLonDeg.toFixed(3)} to ${b.maxLonDeg.toFixed(3)}, latitude ${b.minLatDeg.toFixed(3)} to ${b.maxLatDeg.toFixed(3)}, ${model.crsLabel}) misses every field of the farm.`
         throw badRequest(msg, { file: msg })
       }
-      const chunks = packHeights(model.heightsM)
       const row = await store.transaction(async (repos) => {
-        await repos.terrain.replace(
-          {
-            farmId,
-            fileName: file.originalname.slice(0, 255) || 'elevation model',
-            format: model.format,
-            crs: model.crs,
-            crsLabel: model.crsLabel.slice(0, 255),
-            cols: model.cols,
-            rows: model.rows,
-            x0: model.x0,
-            y0: model.y0,
-            dx: model.dx,
-            dy: model.dy,
-            ...bounds,
-            minHeightM: minH,
-            maxHeightM: maxH,
-            nodataShare: 1 - valid / model.heightsM.length,
-            contentSha: modelSha(model),
-            uploadedBy: user.id,
-          },
-          chunks,
-        )
+        await repos.terrain.replace({ farmId, fileName: file.originalname.slice(0, 255) || 'elevation model', uploadedBy: user.id, ...record.row }, record.chunks)
         return (await repos.terrain.findByFarm(farmId))!
       })
       void emit('terrain.changed', { farmId })

@@ -7,8 +7,9 @@ import type { TerrainGrid } from '../../shared/precision/index.ts'
 import { TERRAIN_SETTINGS } from '../../shared/schemas/terrain.ts'
 import type { Repositories } from '../db/repositories/index.ts'
 import type { ElevationModelRow } from '../db/schema-terrain.ts'
-import { boxesOverlap, geometryBox, localTerrainGrid, unpackHeights, type LonLatBox } from './grid.ts'
-import type { ElevationModel } from './readers.ts'
+import type { NewElevationModel } from '../db/schema-terrain.ts'
+import { boxesOverlap, geometryBox, localTerrainGrid, modelBounds, packHeights, unpackHeights, type LonLatBox } from './grid.ts'
+import { TerrainFileError, type ElevationModel } from './readers.ts'
 
 const cache = new Map<string, ElevationModel>()
 const CACHE_SIZE = 2
@@ -75,4 +76,54 @@ export function boundaryGeometry(text: string): { coordinates: unknown } {
 /** The farm's elevation model row when it covers the field; else null. */
 export function terrainOfField(repos: Repositories, field: { farmId: number; boundary: string }): Promise<ElevationModelRow | null> {
   return modelCovering(repos, field.farmId, boundaryGeometry(field.boundary))
+}
+
+/** What is stored of a model: the row (less farm, file name and uploader) and the packed heights. */
+export interface ModelRecord {
+  row: Omit<NewElevationModel, 'farmId' | 'fileName' | 'uploadedBy'>
+  chunks: Buffer[]
+  bounds: LonLatBox
+}
+
+/** Checks a model (some heights, coordinates on the earth) and packs it; throws TerrainFileError. */
+export function modelRecord(model: ElevationModel): ModelRecord {
+  let valid = 0
+  let minH = Infinity
+  let maxH = -Infinity
+  for (const v of model.heightsM) {
+    if (v !== v) continue
+    valid++
+    if (v < minH) minH = v
+    if (v > maxH) maxH = v
+  }
+  if (valid === 0) throw new TerrainFileError('Every cell of the elevation model is nodata.')
+  let bounds: LonLatBox
+  try {
+    bounds = modelBounds(model)
+  } catch (e) {
+    throw new TerrainFileError(`The elevation model's coordinates cannot be transformed to longitude/latitude (${(e as Error).message}).`)
+  }
+  if (!(bounds.minLatDeg >= -90 && bounds.maxLatDeg <= 90 && bounds.minLonDeg >= -180 && bounds.maxLonDeg <= 180)) {
+    throw new TerrainFileError('The elevation model lies outside longitude -180..180 / latitude -90..90: check its coordinate system.')
+  }
+  return {
+    row: {
+      format: model.format,
+      crs: model.crs,
+      crsLabel: model.crsLabel.slice(0, 255),
+      cols: model.cols,
+      rows: model.rows,
+      x0: model.x0,
+      y0: model.y0,
+      dx: model.dx,
+      dy: model.dy,
+      ...bounds,
+      minHeightM: minH,
+      maxHeightM: maxH,
+      nodataShare: 1 - valid / model.heightsM.length,
+      contentSha: modelSha(model),
+    },
+    chunks: packHeights(model.heightsM),
+    bounds,
+  }
 }
