@@ -1,8 +1,10 @@
 // The demo's hill-country farm: an invented dairy in a narrow hollow, with a valley floor
 // field planned for tile drainage and an elevation model made from a formula (no data file
-// is shipped): the valley floor runs north-south, the east wall rises about 430 m within
-// 800 m of the field (the eastern sky is cut up to about 30 deg), the west side climbs more
-// gently. Written once, with the first demo seed; `tsx seed/terrain.ts FILE.asc` writes the
+// is shipped): the valley floor runs north-south, the east wall rises 500 m within 700 m
+// of the field (the eastern sky is cut up to about 35 deg), the west side climbs more
+// gently. With GPS and GLONASS only (the demo's receivers), tile drainage on the valley
+// floor then closes in several hours a day that are open on flat ground, early and late
+// morning among them (which hours moves with the satellites, about 4 minutes a day). Written once, with the first demo seed; `tsx seed/terrain.ts FILE.asc` writes the
 // same model as an ESRI ASCII grid (WGS-84 degrees, no .prj) for trying the upload by hand.
 import { writeFileSync } from 'node:fs'
 import { fileURLToPath } from 'node:url'
@@ -30,7 +32,7 @@ const smooth = (t: number) => {
 
 /** Ground height (m) at x m east, y m north of the origin: a valley floor at 240 m falling gently south, an east wall, a gentler west side. */
 export function hollowHeightM(x: number, y: number): number {
-  return 240 + 0.004 * y + 430 * smooth((x - 150) / 700) + 150 * smooth((-x - 350) / 1100)
+  return 240 + 0.004 * y + 500 * smooth((x - 100) / 600) + 150 * smooth((-x - 350) / 1100)
 }
 
 /** The model as ESRI ASCII grid text (WGS-84 degrees, cell centres on the formula, heights to 0.1 m). */
