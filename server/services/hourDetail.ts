@@ -11,13 +11,12 @@ import type { HourDetail, HourDetailPoint, StoredHourFigures } from '../../share
 import { assertFarmVisible } from '../auth/access.ts'
 import type { ForecastHourRow } from '../db/schema-planning.ts'
 import { badRequest, notFound } from '../http/errors.ts'
-import { engineSettings } from '../jobs/handlers.ts'
-import { engineWorkTypes, obstructionCollection, outagesInWindow } from '../jobs/inputs.ts'
-import { loadOrbitInputs } from '../jobs/orbitInputs.ts'
+import { engineSettings, inputsOfField } from '../forecast/fieldInputs.ts'
+import { engineWorkTypes, obstructionCollection, outagesInWindow } from '../forecast/inputs.ts'
 import { TERRAIN_SETTINGS } from '../../shared/schemas/terrain.ts'
-import { boundaryGeometry, terrainGridFor, terrainOfField } from '../terrain/store.ts'
+import { boundaryGeometry, terrainGridFor } from '../terrain/store.ts'
 import type { ServiceContext } from './context.ts'
-import { toForecastHour } from './forecasts.ts'
+import { toForecastHour } from '../forecast/storedHour.ts'
 
 /** How far from now an hour's detail may be asked for (the engine can compute any hour, but pages show the week). */
 const MAX_DISTANCE_MS = 60 * 24 * HOUR_MS
@@ -57,17 +56,14 @@ export function createHourDetailService(ctx: ServiceContext) {
         throw badRequest('Ask for an hour within 60 days of today.', { hour: 'Choose an hour within 60 days of today.' })
       }
       const farm = await repos.farms.findById(field.farmId)
-      const [obstructionRows, workTypeRows, orbits, storedRows] = await Promise.all([
-        repos.forecasts.obstructionsOfFarm(field.farmId),
-        repos.forecasts.activeWorkTypes(),
-        loadOrbitInputs(store),
+      const [{ obstructions: obstructionRows, workTypes: workTypeRows, orbits, terrain: terrainRow }, storedRows] = await Promise.all([
+        inputsOfField(store, field),
         repos.forecasts.hours([field.id], new Date(hourStart), new Date(hourStart + HOUR_MS)),
       ])
       const names = new Map(workTypeRows.map((w) => [w.id, w.name]))
       const settings = engineSettings(config)
       const obstructions = obstructionCollection(obstructionRows)
       const outages = outagesInWindow(orbits.outages, hourStart - HOUR_MS, hourStart + 2 * HOUR_MS)
-      const terrainRow = await terrainOfField(store.repos, field)
       const terrainGrid = terrainRow ? await terrainGridFor(store.repos, terrainRow, boundaryGeometry(field.boundary)) : null
       const common = {
         satellites: orbits.satellites,
