@@ -10,6 +10,7 @@ import { seedOperators } from './crew.ts'
 import { seedFields } from './fields.ts'
 import { seedPasses } from './passes.ts'
 import { seedPlanning } from './planning.ts'
+import { seedHillFarm } from './terrain.ts'
 import { DEMO_PASSWORD, demoBusinessName, demoConstellations, demoFarms, demoUsers } from './scenario.ts'
 
 export interface SeedResult {
@@ -26,6 +27,8 @@ export async function seedDemo(db: Database): Promise<SeedResult> {
   await seedOperators(db)
   // The demo farms' fields and obstructions (each farm only while it has none).
   await seedFields(db)
+  // The hill-country farm with its elevation model (written with the first seed only).
+  if (result.seeded) await seedHillFarm(db)
   // Last: demo passes in the coming days on those fields (only while none is upcoming).
   await seedPasses(db)
   return result

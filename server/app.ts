@@ -38,6 +38,7 @@ import { serviceLevelRoutes } from './routes/serviceLevels.ts'
 import { systemRoutes } from './routes/system.ts'
 import { userRoutes } from './routes/users.ts'
 import { workTypeRoutes } from './routes/workTypes.ts'
+import { terrainRoutes } from './routes/terrain.ts'
 import { createServices, type Services } from './services/index.ts'
 
 export const defaultDistDir = fileURLToPath(new URL('../dist', import.meta.url))
@@ -131,6 +132,7 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
   api.use(obstructionRoutes(services))
   api.use(orbitRoutes(services))
   api.use(importRoutes(services))
+  api.use(terrainRoutes(services))
   api.use('/outages', outageRoutes(services))
   api.use('/orbit-feed', orbitFeedRoutes(services))
   api.use('/service-levels', serviceLevelRoutes(services))

@@ -9,6 +9,8 @@ export interface DomainEvents {
   'field.changed': { fieldId: number; farmId: number; deleted: boolean }
   /** A farm's obstructions changed (created, edited, deleted). */
   'obstructions.changed': { farmId: number }
+  /** A farm's elevation model was uploaded, replaced or removed. */
+  'terrain.changed': { farmId: number }
   /** Orbit data changed: a set uploaded or fetched, the active sets or constellations switched. */
   'orbits.changed': { reason: string }
   /** Satellite outages entered, edited or removed, over this span (UTC ms). */

@@ -3,10 +3,14 @@
  *
  * Point mode (no --field): one record per epoch, { "epochs": [...] }.
  * Field mode (--field): hourly aggregates, { "hours": [...] }.
+ * --terrain FILE (GeoTIFF or ESRI ASCII grid; FILE.prj beside an ASCII grid names its CRS,
+ * without one it is read as WGS-84 degrees, heights in metres): the terrain horizon joins the
+ * obstructions; point mode JSON then also carries "terrainHorizon": [{ azimuthDeg, elevationDeg }]
+ * (bin k covers azimuths [k, k+1)).
  * Prints nothing but the result on stdout; skipped orbit records are listed on stderr.
  * Exit status 2 with a one-line message on bad arguments or unreadable orbit files.
  */
-import { readFileSync } from 'node:fs'
+import { existsSync, readFileSync } from 'node:fs'
 import { parseArgs } from 'node:util'
 import type { Feature, FeatureCollection, Geometry, MultiPolygon, Polygon } from 'geojson'
 import {
@@ -26,11 +30,15 @@ import {
   type Satellite,
 } from '../../shared/precision/index'
 import { createSgp4Options } from './propagator'
+import { geometryBox, localTerrainGrid } from '../terrain/grid.ts'
+import { readElevationModel, TerrainFileError } from '../terrain/readers.ts'
+import { terrainHorizonInto, TERRAIN_MAX_DISTANCE_M, type TerrainGrid } from '../../shared/precision/index'
 
 const USAGE =
   'usage: npm run -s forecast -- --orbits FILE|nominal:gps|nominal:all [--orbits ...] --lat DEG --lon DEG ' +
   '[--height M] [--start ISO8601] [--hours N] [--step MIN] [--mask DEG] [--systems GPS,GLONASS,Galileo,BeiDou] ' +
   '[--weights none|elevation] [--field FILE.geojson --obstructions FILE.geojson --antenna-height M] ' +
+  '[--terrain FILE.tif|FILE.asc [--terrain-reach M] [--refraction K]] ' +
   '[--sigma M] [--samples N] [--format json|csv]'
 
 class UsageError extends Error {}
@@ -75,6 +83,24 @@ function fieldGeometry(file: string): FieldGeometry {
   }
   if (isArea(data as Geometry)) return data as Polygon | MultiPolygon
   throw new UsageError(`--field ${file}: expected a GeoJSON Polygon or MultiPolygon`)
+}
+
+/** The elevation model FILE (GeoTIFF or ESRI ASCII grid, FILE.prj beside it if any) as the engine's grid around `geometry`. */
+async function loadTerrain(file: string, geometry: { coordinates: unknown }, reachM: number): Promise<TerrainGrid> {
+  let bytes: Buffer
+  try {
+    bytes = readFileSync(file)
+  } catch (e) {
+    throw new UsageError(`--terrain ${file}: cannot read (${(e as NodeJS.ErrnoException).code ?? String(e)})`)
+  }
+  const prjPath = [file.replace(/\.[^./\\]+$/, '.prj'), `${file}.prj`].find((p) => p !== file && existsSync(p))
+  try {
+    const model = await readElevationModel(new Uint8Array(bytes), { prjText: prjPath ? readFileSync(prjPath, 'utf8') : null })
+    return localTerrainGrid(model, geometryBox(geometry), reachM)
+  } catch (e) {
+    if (e instanceof TerrainFileError) throw new UsageError(`--terrain ${file}: ${e.message}`)
+    throw e
+  }
 }
 
 function loadOrbits(sources: string[], system: GnssSystem | undefined): Satellite[] {
@@ -176,6 +202,9 @@ async function main(argv: string[]): Promise<void> {
         field: { type: 'string' },
         obstructions: { type: 'string' },
         'antenna-height': { type: 'string' },
+        terrain: { type: 'string' },
+        'terrain-reach': { type: 'string' },
+        refraction: { type: 'string' },
         sigma: { type: 'string' },
         samples: { type: 'string' },
         format: { type: 'string' },
@@ -233,6 +262,12 @@ async function main(argv: string[]): Promise<void> {
   const sampleCount = num('samples', values.samples as string | undefined, 64, (v) => Number.isInteger(v) && v >= 1 && v <= 4096, 'samples must be an integer in [1, 4096]')
   const obstructions = values.obstructions !== undefined ? (readJson('obstructions', values.obstructions as string) as FeatureCollection) : null
   if (obstructions && obstructions.type !== 'FeatureCollection') throw new UsageError(`--obstructions ${String(values.obstructions)}: expected a GeoJSON FeatureCollection`)
+  const reachM = num('terrain-reach', values['terrain-reach'] as string | undefined, TERRAIN_MAX_DISTANCE_M, (v) => v > 0 && v <= 50_000, 'reach must be in (0, 50000] m')
+  const refractionK = num('refraction', values.refraction as string | undefined, 0, (v) => v >= 0 && v < 1, 'refraction coefficient must be in [0, 1)')
+  const terrainFile = values.terrain as string | undefined
+  const terrainGeometry = field ? fieldGeometry(field) : { type: 'Point', coordinates: [lon, lat] }
+  const terrainGrid = terrainFile ? await loadTerrain(terrainFile, terrainGeometry as { coordinates: unknown }, reachM) : null
+  const terrainOptions = { maxDistanceM: reachM, refractionK }
   const satellites = loadOrbits(orbits, fileSystem)
   const epochCount = Math.floor((hours * 60) / stepMin) + 1
   let propagation
@@ -244,16 +279,27 @@ async function main(argv: string[]): Promise<void> {
 
   try {
     if (!field) {
+      let terrain = null
+      let terrainHorizon: Array<{ azimuthDeg: number; elevationDeg: number }> | undefined
+      if (terrainGrid) {
+        const bins = new Float64Array(360)
+        const ground = terrainHorizonInto(bins, terrainGrid, { latDeg: lat, lonDeg: lon }, antennaHeightM, terrainOptions)
+        if (!Number.isFinite(ground)) throw new UsageError(`--terrain ${terrainFile}: the elevation model has no height at ${lat}, ${lon}`)
+        terrain = { grid: null, pointHorizonsDeg: bins }
+        terrainHorizon = Array.from(bins, (v, k) => ({ azimuthDeg: k, elevationDeg: Math.round(v * 1000) / 1000 }))
+      }
       const epochs = forecastPoint({
         point: { latDeg: lat, lonDeg: lon, heightM },
-        satellites, startMs, hours, stepMin, maskDeg, systems, weights, obstructions, antennaHeightM, propagation,
+        satellites, startMs, hours, stepMin, maskDeg, systems, weights, obstructions, antennaHeightM, propagation, terrain,
       })
-      process.stdout.write(format === 'csv' ? pointCsv(epochs) : `${JSON.stringify({ epochs }, null, 2)}\n`)
+      const out = terrainHorizon ? { epochs, terrainHorizon } : { epochs }
+      process.stdout.write(format === 'csv' ? pointCsv(epochs) : `${JSON.stringify(out, null, 2)}\n`)
     } else {
       const result = forecastField({
         field: fieldGeometry(field),
         obstructions, antennaHeightM, satellites, startMs, hours, stepMin, maskDeg, systems, weights, heightM,
         sigmaUereM, workTypes: DEMO_WORK_TYPES, sampleCount, propagation,
+        terrain: terrainGrid ? { grid: terrainGrid, options: terrainOptions } : null,
       })
       process.stdout.write(format === 'csv' ? fieldCsv(result.hours) : `${JSON.stringify({ hours: result.hours }, null, 2)}\n`)
     }

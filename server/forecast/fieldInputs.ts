@@ -8,6 +8,7 @@ import type { StoredForecastMeta } from '../db/repositories/forecasts.ts'
 import type { Repositories, Store } from '../db/repositories/index.ts'
 import { inputsVersion, type EngineSettings } from './inputs.ts'
 import { loadOrbitInputs } from './orbitInputs.ts'
+import { terrainOfField, terrainVersionOf } from '../terrain/store.ts'
 
 /** Elevation mask of the stored forecasts (deg), the engine's default. */
 export const FORECAST_MASK_DEG = 10
@@ -18,14 +19,15 @@ export function engineSettings(config: { forecastStepMin: number; forecastSample
 
 type ForecastField = NonNullable<Awaited<ReturnType<Repositories['forecasts']['fieldWithSigma']>>>
 
-/** The inputs besides the field itself (its farm's obstructions, the work types, the orbit data). */
+/** The inputs besides the field itself (its farm's obstructions, the work types, the orbit data, the elevation model covering it). */
 export async function inputsOfField(store: Store, field: ForecastField) {
-  const [obstructions, workTypes, orbits] = await Promise.all([
+  const [obstructions, workTypes, orbits, terrain] = await Promise.all([
     store.repos.forecasts.obstructionsOfFarm(field.farmId),
     store.repos.forecasts.activeWorkTypes(),
     loadOrbitInputs(store),
+    terrainOfField(store.repos, field),
   ])
-  return { field, obstructions, workTypes, orbits }
+  return { field, obstructions, workTypes, orbits, terrain }
 }
 
 /** A field's forecast inputs for the window at `nowMs`, with their version; null when the field is gone. */
@@ -43,6 +45,7 @@ export async function forecastInputsOf(store: Store, fieldId: number, settings: 
     windowStartMs: window.startMs,
     windowHours: window.hours,
     settings,
+    terrain: terrainVersionOf(inputs.terrain),
   })
   return { ...inputs, window, version }
 }

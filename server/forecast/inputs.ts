@@ -3,7 +3,8 @@
 // rows in, data out; no database, no clock.
 import { createHash } from 'node:crypto'
 import type { FeatureCollection } from 'geojson'
-import type { FieldForecastInput, Outage, Satellite, WorkType } from '../../shared/precision/index.ts'
+import type { FieldForecastInput, Outage, Satellite, TerrainGrid, WorkType } from '../../shared/precision/index.ts'
+import { TERRAIN_SETTINGS } from '../../shared/schemas/terrain.ts'
 
 /** What the inputs version covers of a field (the row plus its service level's sigma). */
 export interface FieldInputs {
@@ -45,6 +46,8 @@ export interface VersionInputs {
   windowStartMs: number
   windowHours: number
   settings: EngineSettings
+  /** the elevation model covering the field (server/terrain/store.ts terrainVersionOf); absent or null without one */
+  terrain?: string | null
 }
 
 /** Outages that overlap [startMs, endMs). */
@@ -76,6 +79,8 @@ export function inputsVersion(v: VersionInputs): string {
       .map((w) => [w.id, w.maxH95M, w.maxV95M, w.minSats, w.maxPdop, w.requiredShare, w.requireN1, w.sigmaUereM]),
     win: [v.windowStartMs, v.windowHours],
     s: [v.settings.stepMin, v.settings.sampleCount, v.settings.maskDeg],
+    // Only with an elevation model, so that the versions of fields without one stay as they were.
+    ...(v.terrain ? { t: v.terrain } : {}),
   }
   return createHash('sha256').update(JSON.stringify(canonical)).digest('hex')
 }
@@ -123,6 +128,7 @@ export function engineTask(input: {
   windowStartMs: number
   windowHours: number
   settings: EngineSettings
+  terrain?: TerrainGrid | null
 }): EngineTask {
   return {
     field: JSON.parse(input.field.boundary),
@@ -138,5 +144,6 @@ export function engineTask(input: {
     sigmaUereM: input.field.sigmaUereM,
     workTypes: engineWorkTypes(input.workTypes),
     chunkHours: 24,
+    terrain: input.terrain ? { grid: input.terrain, options: TERRAIN_SETTINGS } : null,
   }
 }

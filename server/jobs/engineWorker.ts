@@ -5,7 +5,7 @@
 // { taskId, type: 'error', message }.
 import { setPriority } from 'node:os'
 import { parentPort } from 'node:worker_threads'
-import { forecastField, type HourAggregate } from '../../shared/precision/index.ts'
+import { fieldTerrainHorizons, forecastField, type HourAggregate } from '../../shared/precision/index.ts'
 import type { EngineTask } from '../forecast/inputs.ts'
 
 export interface EngineRequest {
@@ -22,7 +22,10 @@ const HOUR_MS = 3_600_000
 
 /** Runs the task in chunks of `chunkHours` (same clock hours as one run: epochs start on the hour). */
 export function runEngineTask(task: EngineTask, onChunk: (done: number, total: number) => void): Extract<EngineMessage, { type: 'result' }> {
-  const { chunkHours, ...input } = task
+  const { chunkHours, ...rest } = task
+  // The terrain horizons of the sample points once, for every chunk of hours.
+  const pointHorizonsDeg = rest.terrain?.grid ? fieldTerrainHorizons(rest) : null
+  const input = pointHorizonsDeg ? { ...rest, terrain: { grid: null, pointHorizonsDeg } } : rest
   const hours: HourAggregate[] = []
   let satellitesUsed = 0
   let samplePoints = 0

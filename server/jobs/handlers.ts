@@ -9,6 +9,7 @@ import { engineTask } from '../forecast/inputs.ts'
 import { toStoredHour } from '../forecast/storedHour.ts'
 import { enqueueForecast, enqueueJob } from '../queue/enqueue.ts'
 import { feedUrlOf, fetchOrbitFeed } from '../services/orbitFeed.ts'
+import { boundaryGeometry, terrainGridFor } from '../terrain/store.ts'
 import type { JobContext, JobHandler, JobOutcome } from './runner.ts'
 
 export const forecastHandler: JobHandler = async (ctx: JobContext): Promise<JobOutcome> => {
@@ -34,6 +35,7 @@ export const forecastHandler: JobHandler = async (ctx: JobContext): Promise<JobO
     windowStartMs: window.startMs,
     windowHours: window.hours,
     settings,
+    terrain: inputs.terrain ? await terrainGridFor(store.repos, inputs.terrain, boundaryGeometry(field.boundary)) : null,
   })
   const result = await ctx.pool.run(task, (f) => ctx.progress(0.05 + 0.9 * f))
   if (ctx.signal.aborted) throw ctx.signal.reason

@@ -16,6 +16,7 @@ import { inputsVersion } from '../forecast/inputs.ts'
 import { loadOrbitInputs } from '../forecast/orbitInputs.ts'
 import { JobRunner, type JobHandler } from './runner.ts'
 import { registerForecastTriggers } from './triggers.ts'
+import { terrainOfField, terrainVersionOf } from '../terrain/store.ts'
 
 export interface JobsHandle {
   runner: JobRunner | null
@@ -51,6 +52,7 @@ export async function stalenessSweep(store: Store, config: Config, nowMs = Date.
       windowStartMs: window.startMs,
       windowHours: window.hours,
       settings,
+      terrain: terrainVersionOf(await terrainOfField(store.repos, field)),
     })
     if (storedWeekIsCurrent(meta.get(field.id), window, version)) continue
     const { created } = await enqueueForecast(store, { fieldId: field.id, farmId: field.farmId, reason: 'start-up' }, 'reuse-pending')

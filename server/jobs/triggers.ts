@@ -50,6 +50,10 @@ export function registerForecastTriggers(store: Store, logger: Logger): () => vo
       const n = await enqueueAll(store, await store.repos.forecasts.fieldIds({ farmId }), 'obstructions')
       logger.debug(`obstructions of farm ${farmId} changed: ${n} forecasts queued`)
     }),
+    on('terrain.changed', async ({ farmId }) => {
+      const n = await enqueueAll(store, await store.repos.forecasts.fieldIds({ farmId }), 'terrain')
+      logger.debug(`elevation model of farm ${farmId} changed: ${n} forecasts queued`)
+    }),
     on('orbits.changed', async ({ reason }) => {
       const n = await enqueueAll(store, await store.repos.forecasts.fieldIds(), 'orbits')
       logger.info(`orbit data changed (${reason}): ${n} forecasts queued`)

@@ -13,6 +13,8 @@ import type { ForecastHourRow } from '../db/schema-planning.ts'
 import { badRequest, notFound } from '../http/errors.ts'
 import { engineSettings, inputsOfField } from '../forecast/fieldInputs.ts'
 import { engineWorkTypes, obstructionCollection, outagesInWindow } from '../forecast/inputs.ts'
+import { TERRAIN_SETTINGS } from '../../shared/schemas/terrain.ts'
+import { boundaryGeometry, terrainGridFor } from '../terrain/store.ts'
 import type { ServiceContext } from './context.ts'
 import { toForecastHour } from '../forecast/storedHour.ts'
 
@@ -54,7 +56,7 @@ export function createHourDetailService(ctx: ServiceContext) {
         throw badRequest('Ask for an hour within 60 days of today.', { hour: 'Choose an hour within 60 days of today.' })
       }
       const farm = await repos.farms.findById(field.farmId)
-      const [{ obstructions: obstructionRows, workTypes: workTypeRows, orbits }, storedRows] = await Promise.all([
+      const [{ obstructions: obstructionRows, workTypes: workTypeRows, orbits, terrain: terrainRow }, storedRows] = await Promise.all([
         inputsOfField(store, field),
         repos.forecasts.hours([field.id], new Date(hourStart), new Date(hourStart + HOUR_MS)),
       ])
@@ -62,12 +64,14 @@ export function createHourDetailService(ctx: ServiceContext) {
       const settings = engineSettings(config)
       const obstructions = obstructionCollection(obstructionRows)
       const outages = outagesInWindow(orbits.outages, hourStart - HOUR_MS, hourStart + 2 * HOUR_MS)
+      const terrainGrid = terrainRow ? await terrainGridFor(store.repos, terrainRow, boundaryGeometry(field.boundary)) : null
       const common = {
         satellites: orbits.satellites,
         outages,
         obstructions,
         antennaHeightM: field.antennaHeightM,
         maskDeg: settings.maskDeg,
+        terrain: terrainGrid ? { grid: terrainGrid, options: TERRAIN_SETTINGS } : null,
       }
       const result = forecastField({
         ...common,
@@ -116,6 +120,7 @@ export function createHourDetailService(ctx: ServiceContext) {
             atMs: sky.atMs,
             maskDeg: sky.maskDeg,
             horizonMaskDeg: sky.horizonMaskDeg,
+            terrainHorizonDeg: sky.terrainHorizonDeg,
             satellites: sky.satellites.map((s) => ({
               id: s.id,
               system: s.system,

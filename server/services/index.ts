@@ -24,6 +24,7 @@ import { createServiceLevelsService } from './serviceLevels.ts'
 import { createWorkTypesService } from './workTypes.ts'
 import { createMetaService } from './meta.ts'
 import { createUsersService } from './users.ts'
+import { createTerrainService } from './terrain.ts'
 
 export function createServices(ctx: ServiceContext) {
   return {
@@ -52,6 +53,7 @@ export function createServices(ctx: ServiceContext) {
     exports: createExportsService(ctx),
     crew: createCrewService(ctx),
     taskData: createTaskDataService(ctx),
+    terrain: createTerrainService(ctx),
   }
 }
 export type Services = ReturnType<typeof createServices>

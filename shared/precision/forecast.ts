@@ -19,7 +19,9 @@ import type { Satellite } from './orbits/types'
 import { satellitePositions } from './propagation'
 import { fieldSamplePoints } from './sampling'
 import { GNSS_SYSTEMS } from './systems'
+import { combineHorizonInto, terrainHorizons } from './terrain'
 import type { FieldForecast, FieldForecastInput, HourAggregate, Outage, SkySettings } from './types'
+import type { SamplePoint } from './sampling'
 
 export { hourState } from './aggregate'
 export type * from './types'
@@ -89,6 +91,35 @@ function foliageSets(shapes: readonly ObstructionShape[], epochs: Float64Array):
   return { setOfEpoch, sets }
 }
 
+/** Terrain horizons of the sample points (index point * 360 + k): the precomputed ones when they fit, else from the grid. */
+function fieldTerrain(input: SkySettings, points: readonly SamplePoint[], antennaHeightM: number): Float64Array | null {
+  const t = input.terrain
+  if (!t) return null
+  if (t.pointHorizonsDeg && t.pointHorizonsDeg.length === points.length * 360) return Float64Array.from(t.pointHorizonsDeg)
+  if (!t.grid) return null
+  return terrainHorizons(t.grid, points, antennaHeightM, t.options)
+}
+
+/**
+ * The terrain horizons of a field's sample points, computed once so that a forecast run in
+ * chunks of hours (the job worker) reuses them: pass the result as terrain.pointHorizonsDeg.
+ * Null without a terrain grid.
+ *
+ * @example
+ * const pointHorizonsDeg = fieldTerrainHorizons(input)
+ * forecastField({ ...input, terrain: { ...input.terrain, pointHorizonsDeg } })
+ */
+export function fieldTerrainHorizons(input: FieldForecastInput): Float64Array | null {
+  if (!input.terrain?.grid) return null
+  const antennaHeightM = input.antennaHeightM ?? 0
+  const { points } = fieldSamplePoints(input.field, readObstructions(input.obstructions), {
+    count: input.sampleCount ?? 64,
+    antennaHeightM,
+    maskDeg: input.maskDeg ?? 10,
+  })
+  return terrainHorizons(input.terrain.grid, points, antennaHeightM, input.terrain.options)
+}
+
 /**
  * Forecast of a field: sample points across the polygon, epochs every `stepMin`
  * minutes, aggregated per clock hour (UTC), with the share of the field meeting each
@@ -136,6 +167,9 @@ export function forecastField(input: FieldForecastInput, now?: () => number): Fi
     pointEcef.set(geodeticToEcef({ latDeg: p.latDeg, lonDeg: p.lonDeg, heightM }), 3 * i)
     basis.set(enuBasis(p.latDeg, p.lonDeg), 9 * i)
   })
+  const tTerrain = clock()
+  const terrainDeg = fieldTerrain(input, points, antennaHeightM)
+  const terrainMs = clock() - tTerrain
   const { setOfEpoch, sets } = foliageSets(shapes, epochs)
   const maskSin: Float64Array[] = []
   const maskMaxSin: Float64Array[] = []
@@ -148,6 +182,7 @@ export function forecastField(input: FieldForecastInput, now?: () => number): Fi
     const maxDeg = new Float64Array(nPts)
     for (let p = 0; p < nPts; p++) {
       horizonMaskInto(maskDegBuf, points[p], active, antennaHeightM)
+      if (terrainDeg) combineHorizonInto(maskDegBuf, terrainDeg, p * 360)
       let mx = 0
       for (let k = 0; k < 360; k++) {
         sinArr[p * 360 + k] = Math.sin(maskDegBuf[k] * DEG)
@@ -228,6 +263,6 @@ export function forecastField(input: FieldForecastInput, now?: () => number): Fi
     samples: input.includeSamples
       ? { epochsMs: epochs, points: nPts, satellites: r.nSats, hdop: r.hdop, vdop: r.vdop, pdop: r.pdop, n1Hdop: r.n1h, n1Vdop: r.n1v, n1Pdop: r.n1p }
       : undefined,
-    stageTimes: now ? { propagationMs: t1 - t0, masksMs: t2 - t1, dopMs: t3 - t2, aggregationMs: t4 - t3 } : undefined,
+    stageTimes: now ? { propagationMs: t1 - t0, masksMs: t2 - t1, dopMs: t3 - t2, aggregationMs: t4 - t3, terrainMs } : undefined,
   }
 }

@@ -43,6 +43,9 @@ export type {
   StageTimes,
   WorkType,
 } from './forecast'
+export { fieldTerrainHorizons } from './forecast'
+export { terrainHorizonInto, terrainHorizons, terrainGroundM, gridHeightAt, gridMaxHeight, checkTerrainGrid, combineHorizonInto, EARTH_MEAN_RADIUS_M, TERRAIN_MAX_DISTANCE_M } from './terrain'
+export type { TerrainGrid, TerrainInput, TerrainOptions } from './terrain'
 export { forecastPoint, skyView } from './sky'
 export type { PointEpoch, PointForecastInput, SatStatus, SkyViewInput, SkyView, SkySatellite } from './sky'
 export { DEMO_SERVICE_LEVELS, DEMO_WORK_TYPES } from './defaults'

@@ -16,18 +16,31 @@ import { checkCommon, epochList, HOUR_MS, outageFlags, selectSatellites, type Sk
 import type { Satellite } from './orbits/types'
 import { satellitePositions } from './propagation'
 import type { GnssSystem } from './systems'
+import { pointTerrainHorizon, type TerrainInput } from './terrain'
 interface PointContext {
   ecef: [number, number, number]
   basis: Float64Array
   maskBins: Float64Array | null
+  /** terrain horizon (deg) of the point, null without terrain */
+  terrainBins: Float64Array | null
 }
 
-function pointContext(point: GeodeticPoint, shapes: readonly ObstructionShape[], antennaHeightM: number, atMs?: number): PointContext {
+function pointContext(
+  point: GeodeticPoint,
+  shapes: readonly ObstructionShape[],
+  antennaHeightM: number,
+  atMs?: number,
+  terrainBins: Float64Array | null = null,
+): PointContext {
   const ecef = geodeticToEcef({ ...point, heightM: point.heightM + antennaHeightM })
   const basis = enuBasis(point.latDeg, point.lonDeg)
   let maskBins: Float64Array | null = null
   if (shapes.length > 0) maskBins = horizonMaskInto(new Float64Array(360), point, shapes, antennaHeightM, atMs)
-  return { ecef, basis, maskBins }
+  return { ecef, basis, maskBins, terrainBins }
+}
+
+function terrainOf(terrain: TerrainInput | null | undefined, point: GeodeticPoint, antennaHeightM: number): Float64Array | null {
+  return terrain ? pointTerrainHorizon(terrain, point, antennaHeightM) : null
 }
 
 function azElAt(ctx: PointContext, positions: Float64Array, o: number): { azimuthDeg: number; elevationDeg: number } {
@@ -45,12 +58,16 @@ function azElAt(ctx: PointContext, positions: Float64Array, o: number): { azimut
 }
 
 /** Why a satellite is or is not used at a point. */
-export type SatStatus = 'used' | 'below-mask' | 'behind-obstruction' | 'outage' | 'unknown-position'
+export type SatStatus = 'used' | 'below-mask' | 'behind-obstruction' | 'behind-terrain' | 'outage' | 'unknown-position'
 
 function statusOf(el: number, az: number, maskDeg: number, ctx: PointContext, out: boolean): SatStatus {
   if (!Number.isFinite(el)) return 'unknown-position'
   if (out) return 'outage'
   if (el < maskDeg) return 'below-mask'
+  if (ctx.terrainBins) {
+    const bin = Math.min(359, Math.floor(az))
+    if (el < ctx.terrainBins[bin]) return 'behind-terrain'
+  }
   if (ctx.maskBins) {
     const bin = Math.min(359, Math.floor(az))
     if (el < ctx.maskBins[bin]) return 'behind-obstruction'
@@ -99,12 +116,13 @@ export function forecastPoint(input: PointForecastInput): PointEpoch[] {
   const point: GeodeticPoint = { latDeg: input.point.latDeg, lonDeg: input.point.lonDeg, heightM: input.point.heightM ?? 0 }
   const flags = outageFlags(sats, epochs, input.outages)
   const out: PointEpoch[] = []
-  let ctx = pointContext(point, shapes, antenna, epochs[0])
+  const terrainBins = terrainOf(input.terrain, point, antenna)
+  let ctx = pointContext(point, shapes, antenna, epochs[0], terrainBins)
   let ctxDay = Math.floor(epochs[0] / 86_400_000)
   for (let e = 0; e < epochs.length; e++) {
     const day = Math.floor(epochs[e] / 86_400_000)
     if (day !== ctxDay && shapes.length > 0) {
-      ctx = pointContext(point, shapes, antenna, epochs[e])
+      ctx = pointContext(point, shapes, antenna, epochs[e], terrainBins)
       ctxDay = day
     }
     const dirs: Array<{ azimuthDeg: number; elevationDeg: number; system: string }> = []
@@ -156,8 +174,10 @@ export interface SkySatellite {
 /** A single-point sky view. */
 export interface SkyView {
   atMs: number
-  /** 360 entries: highest blocked elevation (deg) over azimuths [k, k+1) */
+  /** 360 entries: highest elevation (deg) the obstructions block over azimuths [k, k+1) */
   horizonMaskDeg: number[]
+  /** 360 entries: highest elevation (deg) of the terrain over azimuths [k, k+1); null without terrain */
+  terrainHorizonDeg: number[] | null
   maskDeg: number
   satellites: SkySatellite[]
   /** ids of the satellites in use */
@@ -191,7 +211,7 @@ export function skyView(input: SkyViewInput): SkyView {
   const shapes = readObstructions(input.obstructions)
   const antenna = input.antennaHeightM ?? 0
   const point: GeodeticPoint = { latDeg: input.point.latDeg, lonDeg: input.point.lonDeg, heightM: input.point.heightM ?? 0 }
-  const ctx = pointContext(point, shapes, antenna, input.atMs)
+  const ctx = pointContext(point, shapes, antenna, input.atMs, terrainOf(input.terrain, point, antenna))
   const flags = outageFlags(sats, epochs, input.outages)
   const list: SkySatellite[] = []
   const dirs: Array<{ azimuthDeg: number; elevationDeg: number; system: string; id: string }> = []
@@ -235,6 +255,7 @@ export function skyView(input: SkyViewInput): SkyView {
   return {
     atMs: input.atMs,
     horizonMaskDeg: ctx.maskBins ? Array.from(ctx.maskBins, (v) => round(v, 3)!) : new Array<number>(360).fill(0),
+    terrainHorizonDeg: ctx.terrainBins ? Array.from(ctx.terrainBins, (v) => round(v, 3)!) : null,
     maskDeg,
     satellites: list,
     used: dirs.map((d) => d.id),

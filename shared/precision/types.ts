@@ -11,6 +11,7 @@ import type { Satellite } from './orbits/types'
 import type { PropagationOptions } from './propagation'
 import type { FieldGeometry, SamplePoint } from './sampling'
 import type { GnssSystem } from './systems'
+import type { TerrainInput } from './terrain'
 
 /** A satellite out of service over [fromMs, toMs). */
 export interface Outage {
@@ -56,6 +57,8 @@ export interface SkySettings {
   antennaHeightM?: number
   /** how to propagate SGP4 satellites */
   propagation?: PropagationOptions
+  /** terrain from an elevation model (terrain.ts); combined with the obstructions by the maximum per direction */
+  terrain?: TerrainInput | null
 }
 
 /** Input of `forecastField`. */
@@ -147,6 +150,8 @@ export interface StageTimes {
   masksMs: number
   dopMs: number
   aggregationMs: number
+  /** part of masksMs spent on the terrain horizon */
+  terrainMs?: number
 }
 
 /** Result of `forecastField`: plain data, structured-clone friendly. */

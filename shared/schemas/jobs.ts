@@ -15,6 +15,7 @@ export const jobReasons = [
   'manual',
   'field',
   'obstructions',
+  'terrain',
   'orbits',
   'outages',
   'planning',

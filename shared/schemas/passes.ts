@@ -227,7 +227,7 @@ export interface HourDetailSkySatellite {
   system: string
   azimuthDeg: number
   elevationDeg: number
-  status: 'used' | 'below-mask' | 'behind-obstruction' | 'outage' | 'unknown-position'
+  status: 'used' | 'below-mask' | 'behind-obstruction' | 'behind-terrain' | 'outage' | 'unknown-position'
   track: Array<{ tMs: number; azimuthDeg: number; elevationDeg: number }>
 }
 
@@ -249,6 +249,8 @@ export interface HourDetail {
       atMs: number
       maskDeg: number
       horizonMaskDeg: number[]
+      /** the terrain's horizon (deg, 360 entries), null without an elevation model */
+      terrainHorizonDeg: number[] | null
       satellites: HourDetailSkySatellite[]
       used: string[]
       dop: { gdop: number; pdop: number; hdop: number; vdop: number; tdop: number } | null

@@ -61,6 +61,7 @@ async function pump(): Promise<void> {
           obstructions: request.obstructions,
           antennaHeightM: request.antennaHeightM,
           maskDeg: request.maskDeg,
+          terrain: request.terrainHorizonDeg ? { grid: null, pointHorizonsDeg: request.terrainHorizonDeg } : null,
         })
         const message: FromWorker = { type: 'sky', id, view, computeMs: performance.now() - started, orbit: built!.info }
         self.postMessage(message)

@@ -12,6 +12,8 @@ export interface SkyRequest {
   obstructions: FeatureCollection
   antennaHeightM: number
   maskDeg: number
+  /** the terrain horizon of the point (360 bins, deg) from the farm's elevation model; null without one */
+  terrainHorizonDeg?: number[] | null
 }
 
 /** Where the satellites of the sky check came from. */

@@ -244,6 +244,14 @@ const matrix: Record<string, Row> = {
     expect: { ...farmEditors(400) },
   },
   'POST /api/farms/:id/fields/import': { call: (f) => ({ params: { id: f.farmId }, body: {} }), expect: farmEditors(400) },
+  // Elevation models (tests/api/terrain.test.ts). No file: 400; the matrix farm has no model to remove: 404.
+  'GET /api/farms/:id/terrain': { call: (f) => ({ params: { id: f.farmId } }), expect: { ...signedIn(200), otherClient: 404 } },
+  'GET /api/farms/:id/terrain/horizon': {
+    call: (f) => ({ params: { id: f.farmId }, query: 'latDeg=38.35&lonDeg=-97.61&antennaHeightM=3' }),
+    expect: { ...signedIn(200), otherClient: 404 },
+  },
+  'POST /api/farms/:id/terrain': { call: (f) => ({ params: { id: f.farmId }, body: {} }), expect: farmEditors(400) },
+  'DELETE /api/farms/:id/terrain': { call: (f) => ({ params: { id: f.farmId } }), expect: farmEditors(404) },
   'GET /api/outages': { expect: orbitStaff(200) },
   'POST /api/outages': {
     call: () => ({ body: { satId: 'GA1', from: '2030-01-01T00:00:00Z', to: '2030-01-01T06:00:00Z', note: 'matrix' } }),

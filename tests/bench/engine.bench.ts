@@ -6,6 +6,8 @@
  *    then the median of five runs.
  * 2. SGP4 propagation of the same constellations as OMM element sets: satellite.js
  *    `propagate` loop, the engine's `sgp4` loop, and the bulk WASM propagator.
+ * 2b. The terrain stage (terrain.ts): 64 points over a 2000 x 2000 grid, and the week
+ *    forecast with and without those horizons.
  * 3. The yardstick (yardstick.ts) and the engine on those same SGP4 inputs, and the ratio.
  * Options: --no-yardstick (skip part 3), --runs N.
  * Benchmarks are not tests: nothing here fails on a slow machine.
@@ -13,6 +15,7 @@
 import { createSingleThreadRuntime, eciToEcf, gstime, json2satrec, propagate } from 'satellite.js'
 import { DEMO_WORK_TYPES, forecastField, horizonMask, satellitePositions, type FieldForecast, type PropagationOptions, type Satellite } from '../../shared/precision/index'
 import { ANTENNA_M, FIELD, HOURS, MASK_DEG, OBSTRUCTIONS, SAMPLE_COUNT, SIGMA_UERE_M, START_MS, STEP_MIN, nominalAsOmm, nominalSatellites } from './scenario'
+import { terrainStage } from './terrain'
 import { yardstick } from './yardstick'
 
 const args = process.argv.slice(2)
@@ -58,7 +61,7 @@ function engineRuns(label: string, sats: Satellite[], propagation?: PropagationO
   for (let i = 0; i < WARMUPS - 1; i++) run(sats, propagation)
   const runs = Array.from({ length: RUNS }, () => run(sats, propagation))
   const pick = (f: (r: { result: FieldForecast; wallMs: number; cpuMs: number }) => number) => median(runs.map(f))
-  const st = (k: keyof NonNullable<FieldForecast['stageTimes']>) => pick((r) => r.result.stageTimes![k])
+  const st = (k: keyof NonNullable<FieldForecast['stageTimes']>) => pick((r) => r.result.stageTimes![k] ?? 0)
   const wall = pick((r) => r.wallMs)
   const cpu = pick((r) => r.cpuMs)
   const r0 = runs[0].result
@@ -83,6 +86,7 @@ async function main() {
   console.log(`Skyfurrow engine benchmark: ${HOURS} h at ${STEP_MIN} min, ${SAMPLE_COUNT} sample points, nominal GPS+GLONASS+Galileo+BeiDou, ${OBSTRUCTIONS.features.length} obstructions`)
   console.log(`node ${process.version}, one thread`)
   const kepler = engineRuns('Engine, nominal constellations (embedded Keplerian model)', nominalSatellites())
+  table(`Terrain horizon (terrain.ts; median of ${RUNS} runs)`, terrainStage(nominalSatellites(), RUNS))
 
   // SGP4 propagators on the same constellations written as OMM element sets.
   const ommSats = nominalAsOmm()

@@ -19,6 +19,7 @@ import { serviceLevelsRepository } from './serviceLevels.ts'
 import { workTypesRepository } from './workTypes.ts'
 import { sessionsRepository } from './sessions.ts'
 import { tokensRepository } from './tokens.ts'
+import { terrainRepository } from './terrain.ts'
 import { usersRepository } from './users.ts'
 
 export function createRepositories(db: DbOrTx) {
@@ -41,6 +42,7 @@ export function createRepositories(db: DbOrTx) {
     obstructions: obstructionsRepository(db),
     orbits: orbitsRepository(db),
     outages: outagesRepository(db),
+    terrain: terrainRepository(db),
   }
 }
 export type Repositories = ReturnType<typeof createRepositories>
