@@ -1,3 +1,4 @@
+import { createAuditService } from './audit.ts'
 import { createAuthService } from './auth.ts'
 import type { ServiceContext } from './context.ts'
 import { createFarmsService } from './farms.ts'
@@ -48,6 +49,7 @@ export function createServices(ctx: ServiceContext) {
     calendar: createCalendarService(ctx),
     atRisk: createAtRiskService(ctx),
     exports: createExportsService(ctx),
+    audit: createAuditService(ctx),
   }
 }
 export type Services = ReturnType<typeof createServices>

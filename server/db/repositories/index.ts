@@ -1,6 +1,7 @@
 // All repositories over one Drizzle handle, and a Store that runs work in a transaction.
 import { sql } from 'drizzle-orm'
 import type { Database, DbOrTx } from '../index.ts'
+import { auditRepository } from './audit.ts'
 import { businessRepository } from './business.ts'
 import { farmsRepository } from './farms.ts'
 import { fieldsRepository } from './fields.ts'
@@ -40,6 +41,7 @@ export function createRepositories(db: DbOrTx) {
     obstructions: obstructionsRepository(db),
     orbits: orbitsRepository(db),
     outages: outagesRepository(db),
+    audit: auditRepository(db),
   }
 }
 export type Repositories = ReturnType<typeof createRepositories>
