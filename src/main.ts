@@ -4,6 +4,7 @@ import '@fontsource/open-sans/latin-700.css'
 import './styles/main.css'
 
 import { createApp } from 'vue'
+import { z } from 'zod'
 import { createPinia } from 'pinia'
 import {
   Alert,
@@ -34,6 +35,10 @@ import { setUnauthorizedHandler } from './api/http'
 import { config } from './config'
 import { router, RouteNames } from './router'
 import { useSessionStore } from './stores/session'
+
+// zod 4 probes `new Function` to compile parsers, which the content security policy
+// (script-src 'self', no 'unsafe-eval') refuses and reports: parse without it.
+z.config({ jitless: true })
 
 const app = createApp(App)
 const pinia = createPinia()
