@@ -53,7 +53,7 @@ export const users = mysqlTable(
   (t) => [uniqueIndex('users_email_unique').on(t.email), index('users_role_idx').on(t.role)],
 )
 
-/** lucia sessions (id, user, expiry). */
+/** lucia sessions (id, user, expiry, sign-in time). */
 export const sessions = mysqlTable(
   'sessions',
   {
@@ -62,6 +62,8 @@ export const sessions = mysqlTable(
       .notNull()
       .references(() => users.id, { onDelete: 'cascade' }),
     expiresAt: datetime('expires_at', { mode: 'date', fsp: 3 }).notNull(),
+    /** When the user signed in (null for sessions opened before this column existed). */
+    createdAt: datetime('created_at', { mode: 'date', fsp: 3 }).$defaultFn(now),
   },
   (t) => [index('sessions_user_idx').on(t.userId)],
 )

@@ -212,6 +212,13 @@ describe('boundary uploads', () => {
     expectHandled(big, 'a ring of 400 000 vertices')
   })
 
+  it('KML declaring XML entities (entity expansion, external entities) is refused', async () => {
+    const kml = '<?xml version="1.0"?><!DOCTYPE kml [<!ENTITY x SYSTEM "file:///etc/passwd">]><kml><Document><name>&x;</name></Document></kml>'
+    const res = await preview(Buffer.from(kml), 'evil.kml')
+    expect(res.status).toBe(400)
+    expect(res.body.error.message).toMatch(/entities/)
+  })
+
   it('a file over 10 MB is refused with 413', async () => {
     const res = await preview(Buffer.alloc(10 * 1024 * 1024 + 10, 0x20), 'big.geojson')
     expect(res.status).toBe(413)

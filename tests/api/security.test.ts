@@ -2,6 +2,7 @@
 // session rotation (sign-in and privilege change), no account enumeration, cross-site
 // writes refused, and the audit log of admin actions. The sign-in rate limits and the
 // Origin check have their own cases in auth.test.ts; expiry of sessions too.
+import { eq } from 'drizzle-orm'
 import request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import {
@@ -14,6 +15,7 @@ import {
   unique,
   type TestServer,
 } from '../support/server.ts'
+import { sessions } from '../../server/db/schema.ts'
 
 let server: TestServer
 let admin: Client
@@ -78,6 +80,19 @@ describe('session rotation', () => {
     const planted = 'skyfurrow_session=planted0000000000000000000000000000'
     const res2 = await new Client(server.app, planted).post('/api/auth/sign-in', { email: user.email, password: user.password })
     expect(sessionCookieOf(res2)).not.toBe(planted)
+  })
+
+  it('a session in daily use still ends 30 days after its sign-in (periodic re-authentication)', async () => {
+    const user = await createUserWithPassword(server, { role: 'office' })
+    const session = await signIn(server.app, user.email, user.password)
+    const id = session.cookie!.split('=')[1]
+    const day = 86_400_000
+    // Used yesterday (not expired by lucia's 14 days) but signed in 29, then 31 days ago.
+    await server.database.db.update(sessions).set({ createdAt: new Date(Date.now() - 29 * day), expiresAt: new Date(Date.now() + 13 * day) }).where(eq(sessions.id, id))
+    expect((await session.get('/api/auth/me')).status).toBe(200)
+    await server.database.db.update(sessions).set({ createdAt: new Date(Date.now() - 31 * day) }).where(eq(sessions.id, id))
+    expect((await session.get('/api/auth/me')).status).toBe(401)
+    expect(await server.repos.sessions.countOf(user.id)).toBe(0)
   })
 
   it('a change of farm access ends the client user\'s sessions', async () => {

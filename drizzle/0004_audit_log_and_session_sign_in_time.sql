@@ -11,6 +11,7 @@ CREATE TABLE `audit_events` (
 	CONSTRAINT `audit_events_id` PRIMARY KEY(`id`)
 );
 --> statement-breakpoint
+ALTER TABLE `sessions` ADD `created_at` datetime(3);--> statement-breakpoint
 ALTER TABLE `audit_events` ADD CONSTRAINT `audit_events_actor_id_users_id_fk` FOREIGN KEY (`actor_id`) REFERENCES `users`(`id`) ON DELETE set null ON UPDATE no action;--> statement-breakpoint
 CREATE INDEX `audit_at_idx` ON `audit_events` (`at`);--> statement-breakpoint
 CREATE INDEX `audit_target_idx` ON `audit_events` (`target_type`,`target_id`);
