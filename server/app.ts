@@ -15,6 +15,7 @@ import { apiNotFound, errorMiddleware } from './http/errors.ts'
 import { originCheck } from './http/origin.ts'
 import { createLogger, type Logger } from './logger.ts'
 import type { Mailer } from './mail/transport.ts'
+import { auditRoutes } from './routes/audit.ts'
 import { authRoutes, defaultAuthRateLimits, type AuthRateLimits } from './routes/auth.ts'
 import { farmRoutes } from './routes/farms.ts'
 import { fieldRoutes } from './routes/fields.ts'
@@ -91,6 +92,8 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
           fontSrc: ["'self'", 'data:'],
           connectSrc: ["'self'"],
           workerSrc: ["'self'", 'blob:'],
+          // The crew view's web manifest (the service worker is covered by worker-src).
+          manifestSrc: ["'self'"],
           objectSrc: ["'none'"],
           baseUri: ["'self'"],
           formAction: ["'self'"],
@@ -127,6 +130,7 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
   api.use('/auth', authRoutes(services, { ...defaultAuthRateLimits, ...deps.rateLimits }))
   api.use('/farms', farmRoutes(services))
   api.use('/users', userRoutes(services))
+  api.use('/audit', auditRoutes(services))
   api.use('/mailbox', mailboxRoutes(services))
   api.use(fieldRoutes(services))
   api.use(obstructionRoutes(services))

@@ -4,6 +4,7 @@ import '@fontsource/open-sans/latin-700.css'
 import './styles/main.css'
 
 import { createApp } from 'vue'
+import { z } from 'zod'
 import { createPinia } from 'pinia'
 import {
   Alert,
@@ -35,6 +36,10 @@ import { config } from './config'
 import { router, RouteNames } from './router'
 import { registerServiceWorker } from './pwa'
 import { useSessionStore } from './stores/session'
+
+// zod 4 probes `new Function` to compile parsers, which the content security policy
+// (script-src 'self', no 'unsafe-eval') refuses and reports: parse without it.
+z.config({ jitless: true })
 
 const app = createApp(App)
 const pinia = createPinia()

@@ -9,6 +9,11 @@ import { sessions, users } from '../db/schema.ts'
 export const SESSION_COOKIE = 'skyfurrow_session'
 /** Sessions last 14 days; lucia extends one that is past half of that when it is used. */
 export const SESSION_LIFETIME = new TimeSpan(14, 'd')
+/**
+ * However much it is used, a session ends 30 days after its sign-in and the user signs in
+ * again (periodic re-authentication, OWASP ASVS 4.0.3 V3.3.2, level 2).
+ */
+export const SESSION_MAX_AGE_MS = 30 * 86_400_000
 
 interface DatabaseUserAttributes {
   email: string
@@ -33,6 +38,7 @@ class SessionAdapter extends DrizzleMySQLAdapter {
         sessionId: sessions.id,
         userId: sessions.userId,
         expiresAt: sessions.expiresAt,
+        createdAt: sessions.createdAt,
         email: users.email,
         name: users.name,
         role: users.role,
@@ -48,7 +54,11 @@ class SessionAdapter extends DrizzleMySQLAdapter {
   override async getSessionAndUser(sessionId: string): Promise<[DatabaseSession | null, DatabaseUser | null]> {
     const rows = await this.lookup.execute({ id: sessionId })
     if (rows.length !== 1) return [null, null]
-    const { sessionId: id, userId, expiresAt, ...attributes } = rows[0]
+    const { sessionId: id, userId, expiresAt, createdAt, ...attributes } = rows[0]
+    if (createdAt && Date.now() - createdAt.getTime() > SESSION_MAX_AGE_MS) {
+      await this.deleteSession(id)
+      return [null, null]
+    }
     return [
       { id, userId, expiresAt, attributes: {} },
       { id: userId, attributes },

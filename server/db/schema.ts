@@ -53,7 +53,7 @@ export const users = mysqlTable(
   (t) => [uniqueIndex('users_email_unique').on(t.email), index('users_role_idx').on(t.role)],
 )
 
-/** lucia sessions (id, user, expiry). */
+/** lucia sessions (id, user, expiry, sign-in time). */
 export const sessions = mysqlTable(
   'sessions',
   {
@@ -62,6 +62,8 @@ export const sessions = mysqlTable(
       .notNull()
       .references(() => users.id, { onDelete: 'cascade' }),
     expiresAt: datetime('expires_at', { mode: 'date', fsp: 3 }).notNull(),
+    /** When the user signed in (null for sessions opened before this column existed). */
+    createdAt: datetime('created_at', { mode: 'date', fsp: 3 }).$defaultFn(now),
   },
   (t) => [index('sessions_user_idx').on(t.userId)],
 )
@@ -136,3 +138,23 @@ export type UserRow = typeof users.$inferSelect
 export type FarmRow = typeof farms.$inferSelect
 export type MailboxRow = typeof mailboxMessages.$inferSelect
 export type AuthTokenRow = typeof authTokens.$inferSelect
+
+/** Admin actions (role, activity and farm-access changes, work types): who did what, when. */
+export const auditEvents = mysqlTable(
+  'audit_events',
+  {
+    id: int('id').autoincrement().primaryKey(),
+    at: datetime('at', { mode: 'date', fsp: 3 }).notNull().$defaultFn(now),
+    /** The admin who acted; null once that user is deleted (the name is kept). */
+    actorId: int('actor_id').references(() => users.id, { onDelete: 'set null' }),
+    actorName: varchar('actor_name', { length: 120 }).notNull(),
+    action: varchar('action', { length: 40 }).notNull(),
+    targetType: varchar('target_type', { length: 20 }).notNull(),
+    targetId: int('target_id').notNull(),
+    targetName: varchar('target_name', { length: 254 }).notNull(),
+    /** JSON object { key: { from, to } }. */
+    changesJson: text('changes_json').notNull(),
+  },
+  (t) => [index('audit_at_idx').on(t.at), index('audit_target_idx').on(t.targetType, t.targetId)],
+)
+export type AuditEventRow = typeof auditEvents.$inferSelect

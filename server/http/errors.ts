@@ -1,6 +1,7 @@
 // HttpError (thrown by services) and the one error middleware that turns every error into
 // the JSON body `{ error: { code, message, fields? } }` (shared/schemas/common.ts ApiErrorBody).
 import type { ErrorRequestHandler, RequestHandler } from 'express'
+import { DATABASE_DOWN_MESSAGE, isDatabaseUnavailable } from './databaseDown.ts'
 import type { ApiErrorBody } from '../../shared/schemas/common.ts'
 import type { Logger } from '../logger.ts'
 
@@ -59,6 +60,11 @@ export function errorMiddleware(logger: Logger, showStack: boolean): ErrorReques
       } else if (parserStatus && parserStatus >= 400 && parserStatus < 500 && p.expose) {
         status = parserStatus
         body = { error: { code: 'bad_request', message: (err as Error).message || 'The request was not understood.' } }
+      } else if (isDatabaseUnavailable(err)) {
+        status = 503
+        res.set('Retry-After', '30')
+        logger.warn(`${req.method} ${req.originalUrl}: the database is unreachable`)
+        body = { error: { code: 'database_unavailable', message: DATABASE_DOWN_MESSAGE } }
       } else {
         logger.error(`${req.method} ${req.originalUrl} failed`, err)
         body = { error: { code: 'internal', message: 'Something went wrong on the server. Please try again.' } }

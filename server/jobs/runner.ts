@@ -212,7 +212,11 @@ export class JobRunner {
     const now = Date.now()
     const running = await this.store.repos.jobs.running()
     const abandoned = running.filter((j) => {
-      if (j.lockedBy === this.id) return false
+      // A job of this process that no handler runs any more, whose end could not be written
+      // (the database was unreachable when it finished or failed): its heartbeat stopped.
+      if (j.lockedBy === this.id) {
+        return !this.controllers.has(j.id) && (!j.heartbeatAt || now - j.heartbeatAt.getTime() > this.opts.staleAfterMs)
+      }
       if (j.lockedBy && liveIds.has(j.lockedBy)) return false
       if (lockHolderGone(j.lockedBy)) return true
       // Rows written by other code (e.g. a feed run started from the Orbits page) carry no

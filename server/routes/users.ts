@@ -29,7 +29,7 @@ export function userRoutes(services: Services): Router {
   router.patch('/:id', async (req, res) => {
     const { id } = parse(idParamsSchema, req.params, 'address')
     const input = parse(userPatchSchema, req.body)
-    res.json(await users.update(id, input))
+    res.json(await users.update(currentAuth(req).user, id, input))
   })
 
   router.post('/:id/resend-invite', async (req, res) => {

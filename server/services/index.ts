@@ -1,3 +1,4 @@
+import { createAuditService } from './audit.ts'
 import { createAuthService } from './auth.ts'
 import type { ServiceContext } from './context.ts'
 import { createFarmsService } from './farms.ts'
@@ -54,6 +55,7 @@ export function createServices(ctx: ServiceContext) {
     crew: createCrewService(ctx),
     taskData: createTaskDataService(ctx),
     terrain: createTerrainService(ctx),
+    audit: createAuditService(ctx),
   }
 }
 export type Services = ReturnType<typeof createServices>

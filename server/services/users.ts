@@ -9,6 +9,7 @@ import type { UserRow } from '../db/schema.ts'
 import { newLinkToken } from '../auth/password.ts'
 import { badRequest, conflict, HttpError, notFound } from '../http/errors.ts'
 import { inviteMail } from '../mail/templates.ts'
+import { changesBetween, recordAudit, type AuditActor } from './audit.ts'
 import { INVITE_LINK_DAYS, pageOf, rethrowUniqueAsConflict, type ServiceContext } from './context.ts'
 
 const EMAIL_TAKEN = 'A user with this e-mail already exists.'
@@ -104,6 +105,10 @@ export function createUsersService(ctx: ServiceContext) {
           const userId = await repos.users.insert({ email: input.email, name: input.name, role: input.role })
           await repos.users.setFarmIds(userId, farmIds)
           const row = (await repos.users.findById(userId))!
+          await recordAudit(repos, admin, 'user.invited', { type: 'user', id: userId, name: row.email }, {
+            role: { from: null, to: input.role },
+            ...(farmIds.length ? { farmIds: { from: [], to: farmIds } } : {}),
+          })
           // Sent inside the transaction: when the mail cannot go out, the user is not kept.
           await sendInvite(repos, row, admin.name)
           return userId
@@ -114,7 +119,12 @@ export function createUsersService(ctx: ServiceContext) {
       }
     },
 
-    async update(id: number, patch: UserPatch): Promise<User> {
+    /**
+     * Changes a user. A change of role or farm access is a change of privilege: the user's
+     * open sessions end (they sign in again with the new rights). Role, activity and farm
+     * access changes are written to the audit log with the admin who made them.
+     */
+    async update(admin: AuditActor, id: number, patch: UserPatch): Promise<User> {
       await store.transaction(async (repos) => {
         // A change that may take away an admin locks the active admins first, before reading.
         const mayRemoveAdmin = (patch.role !== undefined && patch.role !== 'admin') || patch.active === false
@@ -127,9 +137,12 @@ export function createUsersService(ctx: ServiceContext) {
         if (losesAdmin && activeAdmins.filter((adminId) => adminId !== id).length === 0) {
           throw conflict(LAST_ADMIN_MESSAGE, patch.role && patch.role !== 'admin' ? { role: LAST_ADMIN_MESSAGE } : { active: LAST_ADMIN_MESSAGE })
         }
+        const farmIdsBefore = await repos.users.farmIdsOf(id)
+        let farmIdsAfter = farmIdsBefore
         if (patch.farmIds !== undefined || role !== row.role) {
-          const wanted = patch.farmIds ?? (role === 'client' ? await repos.users.farmIdsOf(id) : [])
-          await repos.users.setFarmIds(id, await checkFarmIds(repos, role, wanted))
+          const wanted = patch.farmIds ?? (role === 'client' ? farmIdsBefore : [])
+          farmIdsAfter = await checkFarmIds(repos, role, wanted)
+          await repos.users.setFarmIds(id, farmIdsAfter)
         }
         await repos.users.update(id, {
           ...(patch.name !== undefined ? { name: patch.name } : {}),
@@ -140,6 +153,16 @@ export function createUsersService(ctx: ServiceContext) {
         if (!active && row.active) {
           await repos.sessions.deleteAllOf(id)
           await repos.tokens.revokeUnused(id)
+        }
+        const target = { type: 'user' as const, id, name: row.email }
+        const roleChange = changesBetween({ role: row.role }, { role }, ['role'])
+        const accessChange = changesBetween({ farmIds: farmIdsBefore }, { farmIds: farmIdsAfter }, ['farmIds'])
+        // New rights, new session: the user's sessions end on a change of privilege.
+        if (Object.keys(roleChange).length || Object.keys(accessChange).length) await repos.sessions.deleteAllOf(id)
+        if (Object.keys(roleChange).length) await recordAudit(repos, admin, 'user.role-changed', target, { ...roleChange, ...accessChange })
+        else if (Object.keys(accessChange).length) await recordAudit(repos, admin, 'user.farm-access-changed', target, accessChange)
+        if (active !== row.active) {
+          await recordAudit(repos, admin, active ? 'user.reactivated' : 'user.deactivated', target, { active: { from: row.active, to: active } })
         }
       })
       return this.get(id)

@@ -5,6 +5,7 @@ import type { Repositories } from '../db/repositories/index.ts'
 import type { WorkTypeRow } from '../db/schema-planning.ts'
 import { emit } from '../events.ts'
 import { badRequest, conflict, notFound } from '../http/errors.ts'
+import { changesBetween, recordAudit, type AuditActor } from './audit.ts'
 import { rethrowUniqueAsConflict, type ServiceContext } from './context.ts'
 
 const NAME_TAKEN = 'A work type with this name already exists.'
@@ -49,14 +50,16 @@ export function createWorkTypesService(ctx: ServiceContext) {
       return toWorkType(row)
     },
 
-    async create(input: WorkTypeInput): Promise<WorkType> {
+    async create(input: WorkTypeInput, actor?: AuditActor): Promise<WorkType> {
       let result: WorkType
       try {
         result = await store.transaction(async (repos) => {
           if (await repos.workTypes.nameTaken(input.name)) throw conflict(NAME_TAKEN, { name: NAME_TAKEN })
           await checkServiceLevel(repos, input.serviceLevelId)
           const id = await repos.workTypes.insert(input)
-          return toWorkType((await repos.workTypes.findById(id))!)
+          const created = toWorkType((await repos.workTypes.findById(id))!)
+          if (actor) await recordAudit(repos, actor, 'work-type.created', { type: 'work-type', id, name: created.name })
+          return created
         })
       } catch (error) {
         rethrowUniqueAsConflict(error, NAME_TAKEN, 'name')
@@ -65,7 +68,7 @@ export function createWorkTypesService(ctx: ServiceContext) {
       return result
     },
 
-    async update(id: number, patch: WorkTypePatch): Promise<WorkType> {
+    async update(id: number, patch: WorkTypePatch, actor?: AuditActor): Promise<WorkType> {
       let affectsForecasts = false
       let result: WorkType
       try {
@@ -79,7 +82,12 @@ export function createWorkTypesService(ctx: ServiceContext) {
           const changes = Object.fromEntries(Object.entries(patch).filter(([, v]) => v !== undefined))
           if (Object.keys(changes).length) await repos.workTypes.update(id, changes)
           affectsForecasts = forecastKeys.some((k) => patch[k] !== undefined && patch[k] !== before[k])
-          return toWorkType((await repos.workTypes.findById(id))!)
+          const after = toWorkType((await repos.workTypes.findById(id))!)
+          const changed = changesBetween(toWorkType(before) as unknown as Record<string, unknown>, after as unknown as Record<string, unknown>, Object.keys(changes))
+          if (actor && Object.keys(changed).length) {
+            await recordAudit(repos, actor, 'work-type.changed', { type: 'work-type', id, name: after.name }, changed)
+          }
+          return after
         })
       } catch (error) {
         rethrowUniqueAsConflict(error, NAME_TAKEN, 'name')
@@ -89,7 +97,7 @@ export function createWorkTypesService(ctx: ServiceContext) {
     },
 
     /** 409 while passes are booked for it (deactivate it instead). */
-    async remove(id: number): Promise<void> {
+    async remove(id: number, actor?: AuditActor): Promise<void> {
       await store.transaction(async (repos) => {
         const row = await repos.workTypes.findById(id)
         if (!row) throw notFound('The work type')
@@ -100,6 +108,7 @@ export function createWorkTypesService(ctx: ServiceContext) {
           )
         }
         await repos.workTypes.delete(id)
+        if (actor) await recordAudit(repos, actor, 'work-type.deleted', { type: 'work-type', id, name: row.name })
       })
       void emit('planning.changed', { serviceLevelIds: 'all' })
     },

@@ -4,7 +4,7 @@ import { roleSchema, unitSystemSchema } from './common'
 export const emailSchema = z.string().trim().toLowerCase().email('Enter a valid e-mail address').max(254)
 export const passwordSchema = z
   .string()
-  .min(10, 'Use at least 10 characters')
+  .min(12, 'Use at least 12 characters')
   .max(200, 'Use at most 200 characters')
 
 export const signInSchema = z.object({

@@ -231,7 +231,10 @@ describe('profile and password', () => {
 
     const short = await current.post('/api/auth/change-password', { currentPassword: user.password, newPassword: 'short' })
     expect(short.status).toBe(400)
-    expect(short.body.error.fields.newPassword).toBe('Use at least 10 characters')
+    expect(short.body.error.fields.newPassword).toBe('Use at least 12 characters')
+    // OWASP ASVS 4.0.3 V2.1.1: at least 12 characters (11 are refused).
+    const eleven = await current.post('/api/auth/change-password', { currentPassword: user.password, newPassword: 'abcdefghijk' })
+    expect(eleven.body.error.fields.newPassword).toBe('Use at least 12 characters')
 
     const ok = await current.post('/api/auth/change-password', { currentPassword: user.password, newPassword: 'brand-new-password' })
     expect(ok.status).toBe(204)

@@ -206,6 +206,8 @@ const matrix: Record<string, Row> = {
     expect: admins(204),
   },
 
+  'GET /api/audit': { expect: admins(200) },
+
   'GET /api/mailbox': { expect: only(['admin', 'office'], 200) },
   'GET /api/mailbox/:id': { call: (f) => ({ params: { id: f.mailId } }), expect: only(['admin', 'office'], 200) },
   'GET /api/mailbox/:id/attachments/:index': {

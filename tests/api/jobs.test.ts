@@ -195,6 +195,31 @@ describe('the runner', () => {
     expect(final?.status, JSON.stringify({ ...final, r2: r2.id })).toBe('done')
   })
 
+  it('a job whose end could not be written (database unreachable) is queued again by its own process', async () => {
+    const kind = `${KIND}-lost-end`
+    const lost = Object.assign(new Error('Connection lost: The server closed the connection.'), { code: 'PROTOCOL_CONNECTION_LOST' })
+    // The database "goes away" as the job ends: neither its completion nor its failure is written.
+    const unreachable = { ...store, repos: { ...store.repos, jobs: { ...store.repos.jobs, complete: async () => Promise.reject(lost), fail: async () => Promise.reject(lost) } } }
+    let ran = 0
+    const r = runner({ [kind]: async () => (ran++, { summary: 'ok' }) }, { store: unreachable, staleAfterMs: 100, heartbeatMs: 20 })
+    const { job } = await enqueueJob(store, { kind, payload: {} }, 'supersede')
+    await r.start()
+    const end = Date.now() + 5_000
+    while (ran === 0 && Date.now() < end) await new Promise((res) => setTimeout(res, 20))
+    await r.idle()
+    expect(await server.repos.jobs.findById(job.id)).toMatchObject({ status: 'running', lockedBy: r.id })
+    // Once its heartbeat is older than the stale limit, the process's own recovery check requeues it.
+    await new Promise((res) => setTimeout(res, 150))
+    expect((await r.recoverAbandoned()).requeued).toBeGreaterThanOrEqual(1)
+    await r.stop()
+    expect(await server.repos.jobs.findById(job.id)).toMatchObject({ status: 'queued', lockedBy: null })
+    const r2 = runner({ [kind]: async () => ({ summary: 'ok' }) })
+    await r2.start()
+    await r2.idle()
+    await r2.stop()
+    expect((await server.repos.jobs.findById(job.id))?.status).toBe('done')
+  })
+
   it('fetches the orbit feed (the local fake feed of this app) in an orbit-feed job', async () => {
     const http = server.app.listen(0, '127.0.0.1')
     await new Promise((res) => http.once('listening', res))

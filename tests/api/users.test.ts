@@ -118,12 +118,17 @@ describe('changes', () => {
     expect((await session.get('/api/auth/me')).body.role).toBe('office')
   })
 
-  it('a role change takes effect on the next request of an open session', async () => {
+  it('a role change ends the open sessions of the user; the next sign-in has the new role and a new session', async () => {
     const user = await createUserWithPassword(server, { role: 'admin' })
     const session = await signIn(server.app, user.email, user.password)
     expect((await session.get('/api/users')).status).toBe(200)
     await admin.patch(`/api/users/${user.id}`, { role: 'office' })
-    expect((await session.get('/api/users')).status).toBe(403)
+    expect(await server.repos.sessions.countOf(user.id)).toBe(0)
+    expect((await session.get('/api/users')).status).toBe(401)
+    const again = await signIn(server.app, user.email, user.password)
+    expect(again.cookie).not.toBe(session.cookie)
+    expect((await again.get('/api/auth/me')).body.role).toBe('office')
+    expect((await again.get('/api/users')).status).toBe(403)
   })
 
   it('deactivating a user ends their sessions; reactivating lets them sign in again', async () => {

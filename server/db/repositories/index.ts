@@ -1,6 +1,7 @@
 // All repositories over one Drizzle handle, and a Store that runs work in a transaction.
 import { sql } from 'drizzle-orm'
 import type { Database, DbOrTx } from '../index.ts'
+import { auditRepository } from './audit.ts'
 import { isDuplicateKey, UniqueViolation } from './util.ts'
 import { businessRepository } from './business.ts'
 import { farmsRepository } from './farms.ts'
@@ -43,6 +44,7 @@ export function createRepositories(db: DbOrTx) {
     orbits: orbitsRepository(db),
     outages: outagesRepository(db),
     terrain: terrainRepository(db),
+    audit: auditRepository(db),
   }
 }
 export type Repositories = ReturnType<typeof createRepositories>
