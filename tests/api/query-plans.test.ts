@@ -5,7 +5,7 @@
 // (EXPLAIN type ALL, MariaDB Knowledge Base "EXPLAIN": "ALL: a full table scan") fails.
 // The work types table is read whole on purpose (a handful of rows; their count and
 // newest change are the read's cache stamp), so it is the one table allowed a scan.
-import { eq, inArray } from 'drizzle-orm'
+import { inArray } from 'drizzle-orm'
 import { drizzle } from 'drizzle-orm/mysql2'
 import mysql from 'mysql2/promise'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'

@@ -47,7 +47,6 @@ import {
   signInCookie,
   startServer,
   waitIdle,
-  waitJobs,
   type LoadResult,
   type ServerProcess,
 } from '../support/serverProcess.ts'

@@ -1,7 +1,7 @@
 /**
  * Parts shared by the server benchmarks (scale.bench.ts) and the multi-process job tests: the private
  * MariaDB, the server process, a bench sign-in, read load with autocannon, waiting for
- * jobs, and process figures (CPU time, resident memory) read from /proc (Linux proc(5):
+ * an idle queue, and process figures (CPU time, resident memory) read from /proc (Linux proc(5):
  * /proc/<pid>/stat fields 14-15 utime/stime in clock ticks, /proc/<pid>/status VmRSS and
  * VmHWM in kB).
  */
@@ -168,25 +168,6 @@ export async function waitIdle(baseUrl: string, cookie: string, appearMs = 3_000
     const s = (await (await fetch(`${baseUrl}/api/jobs/summary`, { headers: { Cookie: cookie } })).json()) as { active: boolean }
     if (!s.active && Date.now() > appear) return
     await new Promise((r) => setTimeout(r, 200))
-  }
-}
-
-/**
- * Waits until every job of `ids` has finished. Polls the cheap summary (what the app's
- * header polls) rather than the job list, so that the waiting adds little to the load.
- */
-export async function waitJobs(baseUrl: string, cookie: string, ids: number[]): Promise<void> {
-  const wanted = new Set(ids)
-  for (;;) {
-    const s = (await (await fetch(`${baseUrl}/api/jobs/summary`, { headers: { Cookie: cookie } })).json()) as { active: boolean }
-    if (!s.active) {
-      const list = (await (await fetch(`${baseUrl}/api/jobs?kind=forecast&limit=500`, { headers: { Cookie: cookie } })).json()) as {
-        items: Array<{ id: number; status: string }>
-      }
-      const mine = list.items.filter((j) => wanted.has(j.id))
-      if (mine.length === Math.min(ids.length, 500) && mine.every((j) => j.status === 'done' || j.status === 'failed')) return
-    }
-    await new Promise((r) => setTimeout(r, 250))
   }
 }
 
