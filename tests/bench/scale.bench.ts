@@ -14,6 +14,8 @@
  *    while autocannon reads GET /api/fields/:id/forecast (25 connections, over all fields)
  *    and the Outlook's farm day view GET /api/farms/:id/forecast?from&to (25 connections,
  *    over all farms): 50 concurrent clients. Then the same reads with nothing running.
+ *    `--first-refresh-only` stops after the first refresh (and 10 s of reads with nothing
+ *    running): the growth in the number of fields in less time.
  * 4. With `--job-processes 2`: one process with JOBS_ENABLED=false serves the pages and two
  *    processes run jobs; the same recompute under the same reads; the speed-up.
  *
@@ -56,11 +58,14 @@ const { values: args } = parseArgs({
     fields: { type: 'string', default: '1000' },
     farms: { type: 'string', default: '40' },
     'job-processes': { type: 'string', default: '1' },
+    /** Only the first refresh (the start-up sweep, no reads): the growth in fields, quickly. */
+    'first-refresh-only': { type: 'boolean', default: false },
   },
 })
 const FIELDS = Number(args.fields)
 const FARMS = Number(args.farms)
 const JOB_PROCESSES = Number(args['job-processes'])
+const FIRST_ONLY = args['first-refresh-only'] === true
 if (!(FIELDS > 0 && FARMS > 0 && JOB_PROCESSES >= 1)) throw new Error('--fields, --farms and --job-processes must be positive numbers.')
 const jobConcurrency = process.env.BENCH_JOB_CONCURRENCY ?? String(defaultJobConcurrency)
 const engineEnv = { JOB_CONCURRENCY: jobConcurrency, FORECAST_STEP_MIN: '5', FORECAST_SAMPLES: '64' }
@@ -229,7 +234,7 @@ async function main(): Promise<void> {
     servers.push(one)
     const cookie = await signInCookie(one.baseUrl, handle, one.output())
     const sweep = await sweepRefresh(handle, one, cookie, t0, cpu0, dbPid)
-    const single = await recomputeUnderReads(handle, one, [one], cookie, fieldIds, readPaths, dbPid)
+    const single = FIRST_ONLY ? null : await recomputeUnderReads(handle, one, [one], cookie, fieldIds, readPaths, dbPid)
     const idleField = load(one.baseUrl, cookie, readPaths.field, 10, 25)
     const idleDay = load(one.baseUrl, cookie, readPaths.day, 10, 25)
     const idle = { field: await idleField, day: await idleDay }
@@ -239,7 +244,7 @@ async function main(): Promise<void> {
     // Phase 2: pages on one process, jobs on JOB_PROCESSES others.
     let multi: Awaited<ReturnType<typeof recomputeUnderReads>> | null = null
     let peakMulti: { server: number; db: number } | null = null
-    if (JOB_PROCESSES > 1) {
+    if (JOB_PROCESSES > 1 && !FIRST_ONLY) {
       one.stop()
       await new Promise((r) => setTimeout(r, 2_000))
       servers.length = 0
@@ -276,16 +281,20 @@ async function main(): Promise<void> {
       ['engine settings', '168 h, 5 min epochs, 64 sample points, nominal GPS+GLONASS+Galileo+BeiDou'],
       ['job concurrency per job process (engine threads)', jobConcurrency],
       ...refreshRows('first refresh, start-up sweep, no reads', sweep),
-      ...refreshRows('recompute of all fields under reads, 1 process', single.refresh),
-      ['  field forecast reads (25 conn.)', reads(single.field)],
-      ['  farm day view reads (25 conn.)', reads(single.day)],
+      ...(single
+        ? [
+            ...refreshRows('recompute of all fields under reads, 1 process', single.refresh),
+            ['  field forecast reads (25 conn.)', reads(single.field)] as [string, string],
+            ['  farm day view reads (25 conn.)', reads(single.day)] as [string, string],
+          ]
+        : []),
       ['reads, nothing running: field forecast', reads(idle.field)],
       ['reads, nothing running: farm day view', reads(idle.day)],
       ['peak RSS, server process(es) / MariaDB', `${peakOne.server.toFixed(0)} MB / ${peakOne.db.toFixed(0)} MB`],
       ...sizes.map((t): [string, string] => [`stored: ${t.name}`, `${t.rows} rows, ${(t.bytes / 1_048_576).toFixed(1)} MB`]),
       ['stored per field (forecast_hours)', forecastBytes ? `${(forecastBytes.bytes / scenario.fields / 1024).toFixed(1)} kB` : '-'],
     ]
-    if (multi && peakMulti) {
+    if (single && multi && peakMulti) {
       rows.push(
         ...refreshRows(`recompute under reads, pages + ${JOB_PROCESSES} job processes`, multi.refresh),
         ['  field forecast reads (25 conn.)', reads(multi.field)],
