@@ -7,6 +7,7 @@ import { setPriority } from 'node:os'
 import { parentPort } from 'node:worker_threads'
 import { fieldTerrainHorizons, forecastField, type HourAggregate } from '../../shared/precision/index.ts'
 import type { EngineTask } from '../forecast/inputs.ts'
+import { PositionMemo } from './positionCache.ts'
 
 export interface EngineRequest {
   taskId: number
@@ -20,8 +21,18 @@ export type EngineMessage =
 
 const HOUR_MS = 3_600_000
 
-/** Runs the task in chunks of `chunkHours` (same clock hours as one run: epochs start on the hour). */
-export function runEngineTask(task: EngineTask, onChunk: (done: number, total: number) => void): Extract<EngineMessage, { type: 'result' }> {
+/** This thread's satellite positions, shared by the fields it computes (positionCache.ts). */
+const positions = new PositionMemo()
+
+/**
+ * Runs the task in chunks of `chunkHours` (same clock hours as one run: epochs start on
+ * the hour), with the thread's shared satellite positions unless `cache` is null.
+ */
+export function runEngineTask(
+  task: EngineTask,
+  onChunk: (done: number, total: number) => void,
+  cache: PositionMemo | null = positions,
+): Extract<EngineMessage, { type: 'result' }> {
   const { chunkHours, ...rest } = task
   // The terrain horizons of the sample points once, for every chunk of hours.
   const pointHorizonsDeg = rest.terrain?.grid ? fieldTerrainHorizons(rest) : null
@@ -32,7 +43,12 @@ export function runEngineTask(task: EngineTask, onChunk: (done: number, total: n
   const chunks = Math.ceil(input.hours / chunkHours)
   for (let c = 0; c < chunks; c++) {
     const h = Math.min(chunkHours, input.hours - c * chunkHours)
-    const result = forecastField({ ...input, startMs: input.startMs + c * chunkHours * HOUR_MS, hours: h })
+    const result = forecastField({
+      ...input,
+      startMs: input.startMs + c * chunkHours * HOUR_MS,
+      hours: h,
+      ...(cache ? { propagation: { cache } } : {}),
+    })
     hours.push(...result.hours)
     satellitesUsed = result.satellitesUsed
     samplePoints = result.samplePoints.length

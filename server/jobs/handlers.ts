@@ -9,6 +9,7 @@ import { engineTask } from '../forecast/inputs.ts'
 import { toStoredHour } from '../forecast/storedHour.ts'
 import { enqueueForecast, enqueueJob } from '../queue/enqueue.ts'
 import { feedUrlOf, fetchOrbitFeed } from '../services/orbitFeed.ts'
+import { FINISHED_JOB_RETENTION_DAYS } from '../queue/retention.ts'
 import { boundaryGeometry, terrainGridFor } from '../terrain/store.ts'
 import type { JobContext, JobHandler, JobOutcome } from './runner.ts'
 
@@ -86,7 +87,7 @@ export const nightlyRefreshHandler: JobHandler = async (ctx) => {
   const window = forecastWindow(Date.now())
   await enqueueJob(store, { kind: 'orbit-feed', dedupeKey: `orbit-feed:${dayOf(Date.now())}`, payload: { reason: 'nightly' }, maxAttempts: 4 }, 'once')
   const pruned = await store.transaction((repos) => repos.forecasts.pruneBefore(new Date(window.startMs)))
-  const prunedJobs = await store.repos.jobs.pruneFinished(new Date(Date.now() - 14 * 86_400_000))
+  const prunedJobs = await store.repos.jobs.pruneFinished(new Date(Date.now() - FINISHED_JOB_RETENTION_DAYS * 86_400_000))
   const fieldList = await store.repos.forecasts.fieldIds()
   let queued = 0
   for (const [i, f] of fieldList.entries()) {

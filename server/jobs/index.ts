@@ -33,32 +33,37 @@ export interface JobsHandle {
 export async function stalenessSweep(store: Store, config: Config, nowMs = Date.now()): Promise<{ checked: number; queued: number }> {
   const settings = engineSettings(config)
   const window = forecastWindow(nowMs, FORECAST_WINDOW_HOURS)
-  const fields = await store.repos.forecasts.allFieldsWithSigma()
-  if (fields.length === 0) return { checked: 0, queued: 0 }
-  const [obstructions, workTypes, orbits, meta] = await Promise.all([
-    store.repos.forecasts.obstructionsOfFarms([...new Set(fields.map((f) => f.farmId))]),
-    store.repos.forecasts.activeWorkTypes(),
-    loadOrbitInputs(store),
-    store.repos.forecasts.storedMeta(),
-  ])
+  const farmIds = [...new Set((await store.repos.forecasts.fieldIds()).map((f) => f.farmId))]
+  if (farmIds.length === 0) return { checked: 0, queued: 0 }
+  const [workTypes, orbits] = await Promise.all([store.repos.forecasts.activeWorkTypes(), loadOrbitInputs(store)])
+  let checked = 0
   let queued = 0
-  for (const field of fields) {
-    const version = inputsVersion({
-      field,
-      obstructions: obstructions.filter((o) => o.farmId === field.farmId),
-      orbitVersion: orbits.version,
-      outages: orbits.outages,
-      workTypes,
-      windowStartMs: window.startMs,
-      windowHours: window.hours,
-      settings,
-      terrain: terrainVersionOf(await terrainOfField(store.repos, field)),
-    })
-    if (storedWeekIsCurrent(meta.get(field.id), window, version)) continue
-    const { created } = await enqueueForecast(store, { fieldId: field.id, farmId: field.farmId, reason: 'start-up' }, 'reuse-pending')
-    if (created) queued++
+  // Farm by farm, so that memory does not grow with the number of fields (boundaries can be large).
+  for (const farmId of farmIds) {
+    const fields = await store.repos.forecasts.allFieldsWithSigma(farmId)
+    const [obstructions, meta] = await Promise.all([
+      store.repos.forecasts.obstructionsOfFarm(farmId),
+      store.repos.forecasts.storedMeta(fields.map((f) => f.id)),
+    ])
+    for (const field of fields) {
+      checked++
+      const version = inputsVersion({
+        field,
+        obstructions,
+        orbitVersion: orbits.version,
+        outages: orbits.outages,
+        workTypes,
+        windowStartMs: window.startMs,
+        windowHours: window.hours,
+        settings,
+        terrain: terrainVersionOf(await terrainOfField(store.repos, field)),
+      })
+      if (storedWeekIsCurrent(meta.get(field.id), window, version)) continue
+      const { created } = await enqueueForecast(store, { fieldId: field.id, farmId: field.farmId, reason: 'start-up' }, 'reuse-pending')
+      if (created) queued++
+    }
   }
-  return { checked: fields.length, queued }
+  return { checked, queued }
 }
 
 /** Milliseconds from `now` to the next server-local `HH:MM`. */

@@ -1,13 +1,15 @@
 // Jobs: the list for office and admin, the summary for the header's progress bar, and the
 // manual recompute of a field's forecast.
 import type { SessionUser } from '../../shared/schemas/auth.ts'
-import { jobKinds, type Job, type JobList, type JobListQuery, type JobSummary } from '../../shared/schemas/jobs.ts'
+import { jobKinds, type Job, type JobList, type JobListQuery, type JobSummary, type StorageReport } from '../../shared/schemas/jobs.ts'
+import { forecastWindow } from '../../shared/schemas/forecast.ts'
 import { assertFarmVisible } from '../auth/access.ts'
 import type { JobListRow } from '../db/repositories/jobs.ts'
 import type { JobRow } from '../db/schema-planning.ts'
 import { notFound } from '../http/errors.ts'
 import { enqueueForecast } from '../queue/enqueue.ts'
 import type { ServiceContext } from './context.ts'
+import { FINISHED_JOB_RETENTION_DAYS } from '../queue/retention.ts'
 
 function parseJson(text: string | null): Record<string, unknown> {
   if (!text) return {}
@@ -64,6 +66,17 @@ export function createJobsService(ctx: ServiceContext) {
         failedRecently: s.failedRecently,
         progress: active ? Math.min(1, (s.finishedInBatch + s.runningProgress) / total) : 1,
         active,
+      }
+    },
+
+    /** Sizes of the stored tables and the pruning rules (the Jobs page's storage section). */
+    async storage(): Promise<StorageReport> {
+      const tables = await store.repos.storage.tables()
+      return {
+        tables,
+        totalBytes: tables.reduce((sum, t) => sum + t.dataBytes + t.indexBytes, 0),
+        jobRetentionDays: FINISHED_JOB_RETENTION_DAYS,
+        windowStart: new Date(forecastWindow(Date.now()).startMs).toISOString(),
       }
     },
 

@@ -23,6 +23,18 @@ export type BulkRuntime = Awaited<ReturnType<typeof createSingleThreadRuntime>>
 export interface PropagationOptions {
   /** When given, SGP4 satellites go through satellite.js's BulkPropagator on this runtime. */
   bulkRuntime?: BulkRuntime
+  /**
+   * When given, positions already computed for the same satellites and epochs are reused
+   * (the engine worker keeps one across the fields of a run: every field of a window needs
+   * the same epoch grid). The positions are read, never written, by the engine.
+   */
+  cache?: PositionCache
+}
+
+/** Earth-fixed positions by satellites and epochs (see PropagationOptions.cache). */
+export interface PositionCache {
+  get(sats: readonly Satellite[], epochsMs: ArrayLike<number>): Float64Array | undefined
+  set(sats: readonly Satellite[], epochsMs: ArrayLike<number>, positions: Float64Array): void
 }
 
 /** Initialises SGP4 from a satellite's stored elements. */
@@ -60,6 +72,13 @@ export function satellitePositions(
   epochsMs: ArrayLike<number>,
   options: PropagationOptions = {},
 ): Float64Array {
+  if (options.cache) {
+    const hit = options.cache.get(sats, epochsMs)
+    if (hit) return hit
+    const computed = satellitePositions(sats, epochsMs, { ...options, cache: undefined })
+    options.cache.set(sats, epochsMs, computed)
+    return computed
+  }
   const nSat = sats.length
   const nEp = epochsMs.length
   const out = new Float64Array(nSat * nEp * 3)

@@ -80,3 +80,22 @@ export interface JobSummary {
   progress: number
   active: boolean
 }
+
+/** One table of the database as GET /api/jobs/storage reports it. */
+export interface StoredTable {
+  name: string
+  /** MariaDB's estimate for InnoDB tables (information_schema.TABLES.TABLE_ROWS) */
+  rowsApprox: number
+  dataBytes: number
+  indexBytes: number
+}
+
+/** GET /api/jobs/storage (office and admin): the size of what is stored, and what is pruned when. */
+export interface StorageReport {
+  tables: StoredTable[]
+  totalBytes: number
+  /** Finished jobs older than this many days are removed by the nightly refresh. */
+  jobRetentionDays: number
+  /** The nightly refresh removes forecast hours before the current window. */
+  windowStart: string
+}

@@ -332,6 +332,7 @@ const matrix: Record<string, Row> = {
   'POST /api/fields/:id/recompute': { call: async (f) => ({ params: { id: await throwawayField(f) } }), expect: only(['admin', 'office', 'contractor'], 202) },
   'GET /api/jobs': { expect: only(['admin', 'office'], 200) },
   'GET /api/jobs/summary': { expect: signedIn(200) },
+  'GET /api/jobs/storage': { expect: only(['admin', 'office'], 200) },
 }
 
 // ---- running it ---------------------------------------------------------------------

@@ -121,12 +121,6 @@ export function forecastsRepository(db: DbOrTx) {
       return db.select().from(obstructions).where(eq(obstructions.farmId, farmId)).orderBy(asc(obstructions.id))
     },
 
-    /** Obstructions of several farms at once (the start-up sweep). */
-    async obstructionsOfFarms(farmIds: number[]): Promise<ObstructionRow[]> {
-      if (farmIds.length === 0) return []
-      return db.select().from(obstructions).where(inArray(obstructions.farmId, farmIds)).orderBy(asc(obstructions.id))
-    },
-
     /** Active work types in display order, each with the sigma of its service level. */
     async activeWorkTypes(): Promise<Array<WorkTypeRow & { sigmaUereM: number }>> {
       const rows = await db
@@ -138,12 +132,13 @@ export function forecastsRepository(db: DbOrTx) {
       return rows.map((r) => ({ ...r.wt, sigmaUereM: r.sigmaUereM }))
     },
 
-    /** Every field with the sigma of its service level (the start-up sweep). */
-    async allFieldsWithSigma(): Promise<Array<FieldRow & { sigmaUereM: number }>> {
+    /** The fields of a farm (or every field) with the sigma of their service level (the start-up sweep). */
+    async allFieldsWithSigma(farmId?: number): Promise<Array<FieldRow & { sigmaUereM: number }>> {
       const rows = await db
         .select({ field: fields, sigmaUereM: serviceLevels.sigmaUereM })
         .from(fields)
         .innerJoin(serviceLevels, eq(serviceLevels.id, fields.serviceLevelId))
+        .where(farmId === undefined ? undefined : eq(fields.farmId, farmId))
         .orderBy(asc(fields.id))
       return rows.map((r) => ({ ...r.field, sigmaUereM: r.sigmaUereM }))
     },

@@ -15,6 +15,7 @@ import { passesRepository } from './passes.ts'
 import { plansRepository } from './plans.ts'
 import { calendarTokensRepository } from './calendarTokens.ts'
 import { jobsRepository } from './jobs.ts'
+import { storageRepository } from './storage.ts'
 import { machinesRepository } from './machines.ts'
 import { serviceLevelsRepository } from './serviceLevels.ts'
 import { workTypesRepository } from './workTypes.ts'
@@ -35,6 +36,7 @@ export function createRepositories(db: DbOrTx) {
     workTypes: workTypesRepository(db),
     machines: machinesRepository(db),
     jobs: jobsRepository(db),
+    storage: storageRepository(db),
     forecasts: forecastsRepository(db),
     passes: passesRepository(db),
     plans: plansRepository(db),

@@ -1,0 +1,147 @@
+// Several server processes on one MariaDB: one serves the pages with JOBS_ENABLED=false,
+// two run jobs. Recomputes of several fields are queued through the page process; one job
+// process is killed with SIGKILL while it holds a job. The other job process takes over
+// what the dead one held (its recovery check finds the lock holder's pid gone) and every
+// job ends done: none is lost, each job not held by the dead process ran exactly once
+// (one attempt), the page process ran none, and every field has exactly its window's
+// hours, all from its job of this test.
+import { and, inArray } from 'drizzle-orm'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { forecastWindow } from '../../shared/schemas/forecast.ts'
+import type { Job } from '../../shared/schemas/jobs.ts'
+import { openDatabase, type DatabaseHandle } from '../../server/db/index.ts'
+import { runMigrations } from '../../server/db/migrate.ts'
+import { createRepositories } from '../../server/db/repositories/index.ts'
+import { jobs } from '../../server/db/schema-planning.ts'
+import { seedDemo } from '../../seed/index.ts'
+import { freePort } from '../e2e/support.ts'
+import { ensureForecastFields } from '../support/forecastFields.ts'
+import { demo, DEMO_PASSWORD } from '../support/server.ts'
+import { groupPids, startServer, type ServerProcess } from '../support/serverProcess.ts'
+
+let db: DatabaseHandle
+let fieldIds: number[] = []
+const servers: ServerProcess[] = []
+
+const env = () => ({
+  DATABASE_URL: process.env.DATABASE_URL!,
+  NODE_ENV: 'test',
+  LOG_LEVEL: 'info',
+  JOB_CONCURRENCY: '1',
+  FORECAST_STEP_MIN: '5',
+  FORECAST_SAMPLES: '64',
+})
+
+/** The pid in a runner id (host:pid:token). */
+const pidOf = (lockedBy: string | null) => (lockedBy ? Number(lockedBy.split(':')[1]) : NaN)
+
+async function until<T>(probe: () => Promise<T | null | undefined | false>, what: string, timeoutMs = 300_000): Promise<T> {
+  const end = Date.now() + timeoutMs
+  for (;;) {
+    const v = await probe()
+    if (v) return v
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}\n${servers.map((s) => s.output().slice(-1500)).join('\n---\n')}`)
+    await new Promise((r) => setTimeout(r, 50))
+  }
+}
+
+beforeAll(async () => {
+  if (!process.env.DATABASE_URL) throw new Error('This test needs DATABASE_URL (a migrated test database).')
+  db = openDatabase(process.env.DATABASE_URL, { connectionLimit: 3 })
+  await runMigrations(db.db)
+  await seedDemo(db.db)
+  fieldIds = (await ensureForecastFields(db.db, 2)).slice(0, 8)
+})
+
+afterAll(async () => {
+  for (const s of servers) {
+    try {
+      process.kill(-s.child.pid!, 'SIGKILL')
+    } catch {
+      // already gone
+    }
+  }
+  await db?.close()
+})
+
+describe('two job processes and a page process', () => {
+  it('SIGKILL of one job process mid-run: no job lost, none run twice, the page process runs none', { timeout: 600_000 }, async () => {
+    const repos = createRepositories(db.db)
+    const web = await startServer({ ...env(), JOBS_ENABLED: 'false' }, await freePort())
+    servers.push(web)
+    const a = await startServer({ ...env(), JOBS_ENABLED: 'true' }, await freePort())
+    servers.push(a)
+    const b = await startServer({ ...env(), JOBS_ENABLED: 'true' }, await freePort())
+    servers.push(b)
+    const webPids = new Set(groupPids(web.child.pid!))
+    const aPids = new Set(groupPids(a.child.pid!))
+
+    const signIn = await fetch(`${web.baseUrl}/api/auth/sign-in`, {
+      method: 'POST',
+      headers: { 'Content-Type': 'application/json', Origin: web.baseUrl },
+      body: JSON.stringify({ email: demo.office, password: DEMO_PASSWORD }),
+    })
+    expect(signIn.status).toBe(200)
+    const cookie = signIn.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ')
+    const queued: Job[] = []
+    for (const id of fieldIds) {
+      const res = await fetch(`${web.baseUrl}/api/fields/${id}/recompute`, {
+        method: 'POST',
+        headers: { 'Content-Type': 'application/json', Origin: web.baseUrl, Cookie: cookie },
+        body: '{}',
+      })
+      expect(res.status).toBe(202)
+      queued.push((await res.json()) as Job)
+    }
+    const ids = queued.map((j) => j.id)
+    const ours = () => db.db.select().from(jobs).where(inArray(jobs.id, ids))
+
+    // Who held which job, as seen while they run.
+    const holders = new Map<number, Set<number>>()
+    const watch = async () => {
+      const rows = await ours()
+      for (const r of rows) if (r.status === 'running' && r.lockedBy) (holders.get(r.id) ?? holders.set(r.id, new Set()).get(r.id)!).add(pidOf(r.lockedBy))
+      return rows
+    }
+
+    // Kill process A while it holds one of our jobs and some are still to do.
+    const heldByA = await until(async () => {
+      const rows = await watch()
+      const mine = rows.filter((r) => r.status === 'running' && aPids.has(pidOf(r.lockedBy)))
+      return mine.length > 0 && rows.filter((r) => r.status === 'done').length < rows.length - 1 && mine.map((r) => r.id)
+    }, 'a job running on process A')
+    process.kill(-a.child.pid!, 'SIGKILL')
+    await new Promise((r) => (a.child.exitCode !== null || a.child.signalCode !== null ? r(null) : a.child.once('exit', r)))
+    const stillHeld = (await ours()).filter((r) => heldByA.includes(r.id) && r.status === 'running')
+    expect(stillHeld.length).toBeGreaterThan(0)
+
+    // Process B finishes everything, the dead process's jobs included.
+    await until(async () => {
+      const rows = await watch()
+      return rows.every((r) => r.status === 'done' || r.status === 'failed') && rows
+    }, 'every job to finish on process B')
+    const rows = await ours()
+    expect(rows.map((r) => [r.id, r.status, r.error])).toEqual(rows.map((r) => [r.id, 'done', null]))
+    const killedIn = new Set(stillHeld.map((r) => r.id))
+    for (const r of rows) {
+      if (killedIn.has(r.id)) expect(r.attempts, `job ${r.id}, held by the killed process`).toBe(2)
+      else expect(r.attempts, `job ${r.id}`).toBe(1)
+    }
+    for (const [id, pids] of holders) for (const pid of pids) expect(webPids.has(pid), `job ${id} ran on the page process`).toBe(false)
+    expect(await db.db.select().from(jobs).where(and(inArray(jobs.id, ids), inArray(jobs.status, ['running', 'queued'])))).toEqual([])
+
+    const window = forecastWindow(Date.now())
+    const meta = await repos.forecasts.storedMeta(fieldIds)
+    for (const id of fieldIds) {
+      const m = meta.get(id)!
+      expect(m.hours, `hours of field ${id}`).toBe(window.hours)
+      expect(m.minVersion).toBe(m.maxVersion)
+      const hours = await repos.forecasts.hours([id], new Date(window.startMs), new Date(window.endMs))
+      expect(new Set(hours.map((h) => h.hourStart.getTime())).size).toBe(window.hours)
+      const job = queued.find((j) => j.fieldId === id)!
+      expect(new Set(hours.map((h) => h.jobId))).toEqual(new Set([job.id]))
+    }
+    // The page process still serves while jobs ran elsewhere.
+    expect((await fetch(`${web.baseUrl}/api/jobs/summary`, { headers: { Cookie: cookie } })).status).toBe(200)
+  })
+})
