@@ -7,6 +7,7 @@
  */
 import type { FeatureCollection } from 'geojson'
 import { aggregateHour, pointDetails, workTests, type Aggregation } from './aggregate'
+import { applyHourCorrections } from './correction'
 import { DEG } from './constants'
 import type { DopWeights } from './dop'
 import { enuBasis, geodeticToEcef } from './geodesy'
@@ -16,6 +17,9 @@ import type { Satellite } from './orbits/types'
 import { satellitePositions, type PropagationOptions } from './propagation'
 import { fieldSamplePoints, type FieldGeometry, type SamplePoint } from './sampling'
 import { GNSS_SYSTEMS, type GnssSystem } from './systems'
+import type { HourReason } from './correction'
+import type { LinkReason } from './errorModel'
+import type { KpBlock, StormAction } from './spaceWeather'
 
 export { hourState } from './aggregate'
 
@@ -41,6 +45,14 @@ export interface WorkType {
   requireN1: boolean
   /** sigma_UERE of this work's correction service (m); defaults to the forecast's */
   sigmaUereM?: number
+  /** baseline part ppm_H b of this work's service on this field (m, errorModel.ts); default 0 */
+  baselineHM?: number
+  /** baseline part ppm_V b (m); default 0 */
+  baselineVM?: number
+  /** set when the field's correction link rules the work out (out of range, past the baseline limit) */
+  closedReason?: LinkReason | null
+  /** what a G3-or-worse hour does to this work (spaceWeather.ts); default 'none' */
+  stormAction?: StormAction
 }
 
 /** The state of an hour for a work type. */
@@ -78,6 +90,11 @@ export interface FieldForecastInput extends SkySettings {
   heightM?: number
   /** ranging sigma of the field's correction service (m) */
   sigmaUereM: number
+  /** baseline parts ppm b of the field's own service (m) for the hours' expected errors; default 0 */
+  baselineHM?: number
+  baselineVM?: number
+  /** Kp forecast blocks; hours they cover carry their space weather */
+  kpBlocks?: readonly KpBlock[]
   workTypes?: readonly WorkType[]
   /** about this many sample points, default 64 */
   sampleCount?: number
@@ -130,7 +147,9 @@ export interface HourAggregate {
   /** expected horizontal / vertical error at 95 % for sigmaUereM (m) */
   h95M: MedianMax
   v95M: MedianMax
-  workTypes: Array<{ id: string; share: number; shareN1: number; state: HourState }>
+  workTypes: Array<{ id: string; share: number; shareN1: number; state: HourState; reason?: HourReason }>
+  /** highest Kp over the hour and its G level; null when no Kp block covers it (absent when no Kp data was given) */
+  spaceWeather?: { kpMax: number; g: number } | null
 }
 
 /** Per-sample-point values over one hour (for a map of the field). */
@@ -352,15 +371,15 @@ export function forecastField(input: FieldForecastInput, now?: () => number): Fi
   const tMaxV = Float64Array.from(tests, (t) => t.maxV)
   const tMaxP = Float64Array.from(tests, (t) => t.maxPdop)
   const tMinSats = Float64Array.from(tests, (t) => t.minSats)
-  const agg: Aggregation = { nPts, areaW, rSats, rH, rV, rP, rN1h, rN1v, rN1p, tests, nTests, tMaxH, tMaxV, tMaxP, tMinSats, vals, wts, satHist, met, metN1, sigma, stats: new Float64Array(7) }
+  const agg: Aggregation = { nPts, areaW, rSats, rH, rV, rP, rN1h, rN1v, rN1p, tests, nTests, tMaxH, tMaxV, tMaxP, tMinSats, vals, wts, satHist, met, metN1, sigma, baselineHM: input.baselineHM ?? 0, baselineVM: input.baselineVM ?? 0, stats: new Float64Array(7) }
   let e0 = 0
   while (e0 < nEp) {
     const hourStart = Math.floor(epochs[e0] / HOUR_MS) * HOUR_MS
     let e1 = e0
     while (e1 < nEp && epochs[e1] < hourStart + HOUR_MS) e1++
-    hours.push(aggregateHour(agg, e0, e1, hourStart))
+    hours.push(applyHourCorrections(aggregateHour(agg, e0, e1, hourStart), input.workTypes, input.kpBlocks))
     if (input.detailHourMs !== undefined && Math.floor(input.detailHourMs / HOUR_MS) * HOUR_MS === hourStart) {
-      detail = { hourStartMs: hourStart, points: pointDetails(points, r, e0, e1, nPts, tests, sigma, horizonMax[setOfEpoch[e0]]) }
+      detail = { hourStartMs: hourStart, points: pointDetails(points, r, e0, e1, nPts, tests, sigma, horizonMax[setOfEpoch[e0]], agg) }
     }
     e0 = e1
   }
