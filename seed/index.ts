@@ -6,6 +6,7 @@ import { hashPassword } from '../server/auth/password.ts'
 import { loadConfig } from '../server/config.ts'
 import { openDatabase, type Database } from '../server/db/index.ts'
 import { createStore } from '../server/db/repositories/index.ts'
+import { seedCorrections } from './corrections.ts'
 import { seedFields } from './fields.ts'
 import { seedPasses } from './passes.ts'
 import { seedPlanning } from './planning.ts'
@@ -23,6 +24,8 @@ export async function seedDemo(db: Database): Promise<SeedResult> {
   const result = await seedPeopleAndFarms(db)
   // The demo farms' fields and obstructions (each farm only while it has none).
   await seedFields(db)
+  // RTK base stations and the correction network the fields reach.
+  await seedCorrections(db)
   // Last: demo passes in the coming days on those fields (only while none is upcoming).
   await seedPasses(db)
   return result

@@ -23,6 +23,7 @@ import { obstructionRoutes } from './routes/obstructions.ts'
 import { orbitRoutes } from './routes/orbits.ts'
 import { outageRoutes } from './routes/outages.ts'
 import { orbitFeedRoutes } from './routes/orbitFeed.ts'
+import { correctionRoutes } from './routes/corrections.ts'
 import { passRoutes } from './routes/passes.ts'
 import { planRoutes } from './routes/plans.ts'
 import { windowRoutes } from './routes/windows.ts'
@@ -140,6 +141,7 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
   api.use(hourDetailRoutes(services))
   api.use(calendarRoutes(services))
   api.use(planRoutes(services))
+  api.use(correctionRoutes(services))
   api.use(apiNotFound)
   app.use('/api', api)
 

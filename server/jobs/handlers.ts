@@ -7,9 +7,11 @@ import type { NewForecastHour } from '../db/repositories/forecasts.ts'
 import type { Store } from '../db/repositories/index.ts'
 import { emit } from '../events.ts'
 import { feedUrlOf, fetchOrbitFeed } from '../services/orbitFeed.ts'
+import { fetchKpFeed, kpFeedUrlOf } from '../services/spaceWeather.ts'
 import { enqueueForecast, enqueueJob, withDeadlockRetry } from './enqueue.ts'
 import { engineTask, inputsVersion, type EngineSettings } from './inputs.ts'
 import { loadOrbitInputs } from './orbitInputs.ts'
+import { fieldCorrection, loadCorrectionInputs, withCorrection } from './correctionInputs.ts'
 import type { JobContext, JobHandler, JobOutcome } from './runner.ts'
 
 /** Elevation mask of the stored forecasts (deg), the engine's default. */
@@ -41,8 +43,10 @@ export function toStoredHour(
     v95MedianM: h.v95M.median,
     v95MaxM: h.v95M.max,
     noFixShare: h.noFixShare,
-    workJson: JSON.stringify(Object.fromEntries(h.workTypes.map((w) => [w.id, { share: w.share, shareN1: w.shareN1, state: w.state }]))),
-    extraJson: JSON.stringify({ samples: h.samples }),
+    workJson: JSON.stringify(
+      Object.fromEntries(h.workTypes.map((w) => [w.id, { share: w.share, shareN1: w.shareN1, state: w.state, ...(w.reason ? { reason: w.reason } : {}) }])),
+    ),
+    extraJson: JSON.stringify({ samples: h.samples, ...(h.spaceWeather !== undefined ? { spaceWeather: h.spaceWeather } : {}) }),
     orbitSummary: meta.orbitSummary.slice(0, 255),
     inputsVersion: meta.inputsVersion,
     jobId: meta.jobId,
@@ -55,12 +59,14 @@ export async function forecastInputsOf(store: Store, fieldId: number, settings: 
   const repos = store.repos
   const field = await repos.forecasts.fieldWithSigma(fieldId)
   if (!field) return null
-  const [obstructions, workTypes, orbits] = await Promise.all([
+  const window = forecastWindow(nowMs, FORECAST_WINDOW_HOURS)
+  const [obstructions, workTypes, orbits, corrections] = await Promise.all([
     repos.forecasts.obstructionsOfFarm(field.farmId),
     repos.forecasts.activeWorkTypes(),
     loadOrbitInputs(store),
+    loadCorrectionInputs(store, window),
   ])
-  const window = forecastWindow(nowMs, FORECAST_WINDOW_HOURS)
+  const correction = fieldCorrection(field, workTypes, corrections)
   const version = inputsVersion({
     field,
     obstructions,
@@ -70,8 +76,9 @@ export async function forecastInputsOf(store: Store, fieldId: number, settings: 
     windowStartMs: window.startMs,
     windowHours: window.hours,
     settings,
+    correction: correction.version,
   })
-  return { field, obstructions, workTypes, orbits, window, version }
+  return { field, obstructions, workTypes, orbits, window, version, correction }
 }
 
 export const forecastHandler: JobHandler = async (ctx: JobContext): Promise<JobOutcome> => {
@@ -94,7 +101,7 @@ export const forecastHandler: JobHandler = async (ctx: JobContext): Promise<JobO
       return { summary: 'Already up to date; nothing recomputed.', inputsVersion: version, data: { skipped: true } }
     }
   }
-  const task = engineTask({
+  const task = withCorrection(engineTask({
     field,
     obstructions: inputs.obstructions,
     satellites: inputs.orbits.satellites,
@@ -103,7 +110,7 @@ export const forecastHandler: JobHandler = async (ctx: JobContext): Promise<JobO
     windowStartMs: window.startMs,
     windowHours: window.hours,
     settings,
-  })
+  }), inputs.correction)
   const result = await ctx.pool.run(task, (f) => ctx.progress(0.05 + 0.9 * f))
   if (ctx.signal.aborted) throw ctx.signal.reason
   if (result.hours.length !== window.hours) {
@@ -141,6 +148,13 @@ export const orbitFeedHandler: JobHandler = async (ctx) => {
   return { summary: result.message, data: { ...result } }
 }
 
+/** Fetches the Kp forecast feed (the app's local fake feed by default); the runner retries a failure. */
+export const spaceWeatherHandler: JobHandler = async (ctx) => {
+  const result = await fetchKpFeed(ctx.store, kpFeedUrlOf(ctx.config))
+  if (!result.ok) throw new Error(result.message)
+  return { summary: result.message, data: { ...result } }
+}
+
 /** The date (UTC) a daily job belongs to, for its dedupe key. */
 const dayOf = (ms: number) => new Date(ms).toISOString().slice(0, 10)
 
@@ -152,6 +166,7 @@ export const nightlyRefreshHandler: JobHandler = async (ctx) => {
   const { store } = ctx
   const window = forecastWindow(Date.now())
   await enqueueJob(store, { kind: 'orbit-feed', dedupeKey: `orbit-feed:${dayOf(Date.now())}`, payload: { reason: 'nightly' }, maxAttempts: 4 }, 'once')
+  await enqueueSpaceWeather(store)
   const pruned = await store.transaction((repos) => repos.forecasts.pruneBefore(new Date(window.startMs)))
   const prunedJobs = await store.repos.jobs.pruneFinished(new Date(Date.now() - 14 * 86_400_000))
   const fieldList = await store.repos.forecasts.fieldIds()
@@ -167,6 +182,11 @@ export const nightlyRefreshHandler: JobHandler = async (ctx) => {
   }
 }
 
+/** Queues today's Kp feed fetch once (the nightly refresh and the start-up). */
+export function enqueueSpaceWeather(store: Store) {
+  return enqueueJob(store, { kind: 'space-weather', dedupeKey: `space-weather:${dayOf(Date.now())}`, payload: { reason: 'nightly' }, maxAttempts: 4 }, 'once')
+}
+
 export function defaultHandlers(extra: Record<string, JobHandler> = {}): Record<string, JobHandler> {
-  return { forecast: forecastHandler, 'nightly-refresh': nightlyRefreshHandler, 'orbit-feed': orbitFeedHandler, ...extra }
+  return { forecast: forecastHandler, 'nightly-refresh': nightlyRefreshHandler, 'orbit-feed': orbitFeedHandler, 'space-weather': spaceWeatherHandler, ...extra }
 }

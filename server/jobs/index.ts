@@ -10,9 +10,10 @@ import type { Store } from '../db/repositories/index.ts'
 import type { Logger } from '../logger.ts'
 import { enqueueForecast, enqueueJob } from './enqueue.ts'
 import { EnginePool } from './enginePool.ts'
-import { defaultHandlers, engineSettings } from './handlers.ts'
+import { defaultHandlers, engineSettings, enqueueSpaceWeather } from './handlers.ts'
 import { inputsVersion } from './inputs.ts'
 import { loadOrbitInputs } from './orbitInputs.ts'
+import { fieldCorrection, loadCorrectionInputs } from './correctionInputs.ts'
 import { JobRunner, type JobHandler } from './runner.ts'
 import { registerForecastTriggers } from './triggers.ts'
 
@@ -33,11 +34,12 @@ export async function stalenessSweep(store: Store, config: Config, nowMs = Date.
   const window = forecastWindow(nowMs, FORECAST_WINDOW_HOURS)
   const fields = await store.repos.forecasts.allFieldsWithSigma()
   if (fields.length === 0) return { checked: 0, queued: 0 }
-  const [obstructions, workTypes, orbits, meta] = await Promise.all([
+  const [obstructions, workTypes, orbits, meta, corrections] = await Promise.all([
     store.repos.forecasts.obstructionsOfFarms([...new Set(fields.map((f) => f.farmId))]),
     store.repos.forecasts.activeWorkTypes(),
     loadOrbitInputs(store),
     store.repos.forecasts.storedMeta(),
+    loadCorrectionInputs(store, window),
   ])
   let queued = 0
   for (const field of fields) {
@@ -50,6 +52,7 @@ export async function stalenessSweep(store: Store, config: Config, nowMs = Date.
       windowStartMs: window.startMs,
       windowHours: window.hours,
       settings,
+      correction: fieldCorrection(field, workTypes, corrections).version,
     })
     const m = meta.get(field.id)
     const current =
@@ -107,6 +110,8 @@ export async function startJobs(deps: {
   let sweep = { checked: 0, queued: 0 }
   if (deps.sweep !== false) {
     try {
+      // Today's Kp forecast before the sweep, so the first forecasts carry it.
+      await enqueueSpaceWeather(store)
       sweep = await stalenessSweep(store, config)
       if (sweep.queued) logger.info(`start-up check: ${sweep.queued} of ${sweep.checked} field forecasts queued for a recompute`)
     } catch (error) {

@@ -54,6 +54,8 @@ export interface VersionInputs {
   windowStartMs: number
   windowHours: number
   settings: EngineSettings
+  /** the correction part (correctionInputs.ts): link, baselines, Kp blocks, storm settings */
+  correction?: string
 }
 
 /** Outages that overlap [startMs, endMs). */
@@ -85,6 +87,7 @@ export function inputsVersion(v: VersionInputs): string {
       .map((w) => [w.id, w.maxH95M, w.maxV95M, w.minSats, w.maxPdop, w.requiredShare, w.requireN1, w.sigmaUereM]),
     win: [v.windowStartMs, v.windowHours],
     s: [v.settings.stepMin, v.settings.sampleCount, v.settings.maskDeg],
+    ...(v.correction === undefined ? {} : { c: v.correction }),
   }
   return createHash('sha256').update(JSON.stringify(canonical)).digest('hex')
 }

@@ -28,6 +28,13 @@ export function toForecastHour(row: ForecastHourRow): ForecastHour {
   } catch {
     workTypes = {}
   }
+  let spaceWeather: ForecastHour['spaceWeather']
+  try {
+    const extra = row.extraJson ? (JSON.parse(row.extraJson) as { spaceWeather?: ForecastHour['spaceWeather'] }) : {}
+    spaceWeather = extra.spaceWeather
+  } catch {
+    spaceWeather = undefined
+  }
   return {
     time: row.hourStart.toISOString(),
     satsMin: row.satsMin,
@@ -44,6 +51,7 @@ export function toForecastHour(row: ForecastHourRow): ForecastHour {
     v95MaxM: row.v95MaxM,
     noFixShare: row.noFixShare,
     workTypes,
+    ...(spaceWeather !== undefined ? { spaceWeather } : {}),
   }
 }
 

@@ -22,6 +22,8 @@ import { createServiceLevelsService } from './serviceLevels.ts'
 import { createWorkTypesService } from './workTypes.ts'
 import { createMetaService } from './meta.ts'
 import { createUsersService } from './users.ts'
+import { createCorrectionsService } from './corrections.ts'
+import { createSpaceWeatherService } from './spaceWeather.ts'
 
 export function createServices(ctx: ServiceContext) {
   return {
@@ -48,6 +50,8 @@ export function createServices(ctx: ServiceContext) {
     calendar: createCalendarService(ctx),
     atRisk: createAtRiskService(ctx),
     exports: createExportsService(ctx),
+    corrections: createCorrectionsService(ctx),
+    spaceWeather: createSpaceWeatherService(ctx),
   }
 }
 export type Services = ReturnType<typeof createServices>

@@ -46,6 +46,8 @@ export interface WorkTypeHour {
   /** 0..1 meeting them with the most damaging satellite lost */
   shareN1: number
   state: HourState
+  /** why the state is worse than the geometry: the correction link or a storm (correction.ts) */
+  reason?: 'no-source' | 'out-of-range' | 'baseline-limit' | 'storm'
 }
 
 /** One stored hour of a field's forecast (UTC hour start). Null figures: no fix at all. */
@@ -69,6 +71,8 @@ export interface ForecastHour {
   noFixShare: number
   /** keyed by work type id (as text) */
   workTypes: Record<string, WorkTypeHour>
+  /** highest Kp of the hour and its NOAA G level; null: no Kp forecast covers it; absent: stored before Kp data */
+  spaceWeather?: { kpMax: number; g: number } | null
 }
 
 /** A queued or running recompute of the field. */

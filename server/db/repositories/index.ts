@@ -19,6 +19,7 @@ import { workTypesRepository } from './workTypes.ts'
 import { sessionsRepository } from './sessions.ts'
 import { tokensRepository } from './tokens.ts'
 import { usersRepository } from './users.ts'
+import { correctionsRepository } from './corrections.ts'
 
 export function createRepositories(db: DbOrTx) {
   return {
@@ -40,6 +41,7 @@ export function createRepositories(db: DbOrTx) {
     obstructions: obstructionsRepository(db),
     orbits: orbitsRepository(db),
     outages: outagesRepository(db),
+    corrections: correctionsRepository(db),
   }
 }
 export type Repositories = ReturnType<typeof createRepositories>
