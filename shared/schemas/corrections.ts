@@ -124,3 +124,23 @@ export interface SpaceWeatherStatus {
   /** UTC days (YYYY-MM-DD) with a block of G3 or worse */
   stormDays: string[]
 }
+
+/** The error budget of an hour (hour detail): each part with its figure, at the field's worst. */
+export interface HourErrorBudget {
+  sigmaUereM: number
+  hdop: number | null
+  vdop: number | null
+  /** 2 HDOP sigma, 1.96 VDOP sigma (m) */
+  geometryH95M: number | null
+  geometryV95M: number | null
+  /** 2 ppm_H b, 1.96 ppm_V b (m) */
+  baselineH95M: number
+  baselineV95M: number
+  h95M: number | null
+  v95M: number | null
+  link: { kind: 'base' | 'network'; name: string; baselineKm: number; farthestKm: number; reachable: boolean } | null
+  /** highest Kp of the hour and its G level; null: no Kp forecast covers the hour */
+  spaceWeather: { kpMax: number; g: number } | null
+  /** work type id -> why it is Closed regardless of the geometry */
+  closedReasons: Record<string, CorrectionProblem>
+}

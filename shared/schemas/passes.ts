@@ -3,6 +3,7 @@
 // IANA time zone so pages and exports show farm-local times.
 import { z } from 'zod'
 import { idSchema } from './common'
+import type { HourErrorBudget } from './corrections'
 
 export const passStatuses = ['planned', 'confirmed', 'done', 'cancelled'] as const
 export type PassStatus = (typeof passStatuses)[number]
@@ -178,6 +179,8 @@ export interface HourWorkState {
   share: number
   shareN1: number
   state: 'clear' | 'tight' | 'closed'
+  /** why the state is worse than the geometry (corrections.ts) */
+  reason?: 'no-source' | 'out-of-range' | 'baseline-limit' | 'storm'
 }
 
 /** The stored figures of one forecast hour (null: no fix or not computed). */
@@ -235,6 +238,8 @@ export interface HourDetail {
   hourStart: string
   /** what the forecast job stored for this hour; null when nothing is stored */
   stored: StoredHourFigures | null
+  /** geometry x sigma, the baseline part and the space weather of the hour (corrections.ts) */
+  errorBudget: HourErrorBudget
   /** computed now with the active orbit data, outages and the farm's obstructions */
   computed: {
     orbitSummary: string
