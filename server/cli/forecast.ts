@@ -26,12 +26,13 @@ import {
   type Satellite,
 } from '../../shared/precision/index'
 import { createSgp4Options } from './propagator'
+import { fieldBaseline, parseBaseArgs, pointBaseline } from './baselineArgs'
 
 const USAGE =
   'usage: npm run -s forecast -- --orbits FILE|nominal:gps|nominal:all [--orbits ...] --lat DEG --lon DEG ' +
   '[--height M] [--start ISO8601] [--hours N] [--step MIN] [--mask DEG] [--systems GPS,GLONASS,Galileo,BeiDou] ' +
   '[--weights none|elevation] [--field FILE.geojson --obstructions FILE.geojson --antenna-height M] ' +
-  '[--sigma M] [--samples N] [--format json|csv]'
+  '[--sigma M] [--samples N] [--base LAT,LON[,HEIGHT_M] [--ppm-h MM_PER_KM] [--ppm-v MM_PER_KM] [--max-baseline-km KM]] [--format json|csv]'
 
 class UsageError extends Error {}
 
@@ -180,6 +181,10 @@ async function main(argv: string[]): Promise<void> {
         samples: { type: 'string' },
         format: { type: 'string' },
         propagator: { type: 'string' },
+        base: { type: 'string' },
+        'ppm-h': { type: 'string' },
+        'ppm-v': { type: 'string' },
+        'max-baseline-km': { type: 'string' },
         help: { type: 'boolean' },
       },
     }).values
@@ -233,6 +238,12 @@ async function main(argv: string[]): Promise<void> {
   const sampleCount = num('samples', values.samples as string | undefined, 64, (v) => Number.isInteger(v) && v >= 1 && v <= 4096, 'samples must be an integer in [1, 4096]')
   const obstructions = values.obstructions !== undefined ? (readJson('obstructions', values.obstructions as string) as FeatureCollection) : null
   if (obstructions && obstructions.type !== 'FeatureCollection') throw new UsageError(`--obstructions ${String(values.obstructions)}: expected a GeoJSON FeatureCollection`)
+  let baseArgs
+  try {
+    baseArgs = parseBaseArgs(values as Parameters<typeof parseBaseArgs>[0])
+  } catch (e) {
+    throw new UsageError((e as Error).message)
+  }
   const satellites = loadOrbits(orbits, fileSystem)
   const epochCount = Math.floor((hours * 60) / stepMin) + 1
   let propagation
@@ -248,14 +259,19 @@ async function main(argv: string[]): Promise<void> {
         point: { latDeg: lat, lonDeg: lon, heightM },
         satellites, startMs, hours, stepMin, maskDeg, systems, weights, obstructions, antennaHeightM, propagation,
       })
-      process.stdout.write(format === 'csv' ? pointCsv(epochs) : `${JSON.stringify({ epochs }, null, 2)}\n`)
+      const extra = baseArgs ? pointBaseline(baseArgs, { latDeg: lat, lonDeg: lon }) : {}
+      process.stdout.write(format === 'csv' ? pointCsv(epochs) : `${JSON.stringify({ ...extra, epochs }, null, 2)}\n`)
     } else {
+      const geometry = fieldGeometry(field)
+      const link = baseArgs ? fieldBaseline(baseArgs, geometry, DEMO_WORK_TYPES) : null
       const result = forecastField({
-        field: fieldGeometry(field),
+        field: geometry,
         obstructions, antennaHeightM, satellites, startMs, hours, stepMin, maskDeg, systems, weights, heightM,
-        sigmaUereM, workTypes: DEMO_WORK_TYPES, sampleCount, propagation,
+        sigmaUereM, workTypes: link?.workTypes ?? DEMO_WORK_TYPES, sampleCount, propagation,
+        baselineHM: link?.baselineHM, baselineVM: link?.baselineVM,
       })
-      process.stdout.write(format === 'csv' ? fieldCsv(result.hours) : `${JSON.stringify({ hours: result.hours }, null, 2)}\n`)
+      const extra = link ? { baselineKm: link.baselineKm, farthestKm: link.farthestKm } : {}
+      process.stdout.write(format === 'csv' ? fieldCsv(result.hours) : `${JSON.stringify({ ...extra, hours: result.hours }, null, 2)}\n`)
     }
   } catch (e) {
     // Bad geometry or settings found by the engine are argument errors too.
