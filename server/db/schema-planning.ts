@@ -20,7 +20,11 @@ import {
   text,
   uniqueIndex,
   varchar,
+  type MySqlDoubleBuilderInitial,
 } from 'drizzle-orm/mysql-core'
+import type { HasDefault, NotNull } from 'drizzle-orm'
+import { ZodNullable } from 'zod'
+import { hourFiguresSchema, type HourFigures } from '../../shared/schemas/forecast.ts'
 import { farms, users } from './schema.ts'
 
 const now = () => new Date()
@@ -301,6 +305,27 @@ export const jobs = mysqlTable(
   ],
 )
 
+/**
+ * One column per hour figure of the shared schema (shared/schemas/forecast.ts), named in
+ * snake case (h95MedianM -> h95_median_m): SMALLINT for an integer figure, DOUBLE for any
+ * other, NOT NULL DEFAULT 0 for a figure that is never null. (The type names every number
+ * column a double: both read and write as a number.)
+ */
+function hourFigureColumns() {
+  type Column<V> = null extends V
+    ? MySqlDoubleBuilderInitial<string>
+    : HasDefault<NotNull<MySqlDoubleBuilderInitial<string>>>
+  const columns: Record<string, unknown> = {}
+  for (const [key, figure] of Object.entries(hourFiguresSchema.shape)) {
+    const name = key.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`)
+    const nullable = figure instanceof ZodNullable
+    const inner = (nullable ? figure.unwrap() : figure) as { format?: string | null }
+    const column = inner.format === 'safeint' ? smallint(name) : double(name)
+    columns[key] = nullable ? column : column.notNull().default(0)
+  }
+  return columns as { [K in keyof HourFigures]: Column<HourFigures[K]> }
+}
+
 /** One stored forecast hour of a field (UTC hour start); replaced whole by each job. */
 export const forecastHours = mysqlTable(
   'forecast_hours',
@@ -309,21 +334,7 @@ export const forecastHours = mysqlTable(
       .notNull()
       .references(() => fields.id, { onDelete: 'cascade' }),
     hourStart: at('hour_start').notNull(),
-    satsMin: smallint('sats_min'),
-    satsMedian: double('sats_median'),
-    hdopMedian: double('hdop_median'),
-    hdopMax: double('hdop_max'),
-    vdopMedian: double('vdop_median'),
-    vdopMax: double('vdop_max'),
-    pdopMax: double('pdop_max'),
-    n1HdopMax: double('n1_hdop_max'),
-    /** expected errors at 95 % for the field's service level (m) */
-    h95MedianM: double('h95_median_m'),
-    h95MaxM: double('h95_max_m'),
-    v95MedianM: double('v95_median_m'),
-    v95MaxM: double('v95_max_m'),
-    /** Share (0..1) of sample-epochs with no fix. */
-    noFixShare: double('no_fix_share').notNull().default(0),
+    ...hourFigureColumns(),
     /** JSON object keyed by work type id: { share, shareN1, state: 'clear'|'tight'|'closed' }. */
     workJson: text('work_json').notNull(),
     /** Everything else the engine reports for the hour, as JSON. */

@@ -2,7 +2,7 @@
 // per thread at a time. A thread that dies is replaced; its task fails with the reason.
 import { Worker } from 'node:worker_threads'
 import type { EngineMessage } from './engineWorker.ts'
-import type { EngineTask } from './inputs.ts'
+import type { EngineTask } from '../forecast/inputs.ts'
 
 type EngineResult = Extract<EngineMessage, { type: 'result' }>
 

@@ -6,7 +6,7 @@
 import { setPriority } from 'node:os'
 import { parentPort } from 'node:worker_threads'
 import { forecastField, type HourAggregate } from '../../shared/precision/index.ts'
-import type { EngineTask } from './inputs.ts'
+import type { EngineTask } from '../forecast/inputs.ts'
 
 export interface EngineRequest {
   taskId: number

@@ -1,85 +1,18 @@
 // Job handlers by kind: 'forecast' (one field's 7-day forecast, computed on a worker
 // thread and stored in one transaction), 'nightly-refresh' (rolls every field's window
 // forward and prunes old rows) and 'orbit-feed' (fetches the configured orbit feed).
-import { forecastWindow, FORECAST_WINDOW_HOURS } from '../../shared/schemas/forecast.ts'
-import type { HourAggregate } from '../../shared/precision/index.ts'
-import type { NewForecastHour } from '../db/repositories/forecasts.ts'
-import type { Store } from '../db/repositories/index.ts'
+import { forecastWindow } from '../../shared/schemas/forecast.ts'
+import { withDeadlockRetry } from '../db/retry.ts'
 import { emit } from '../events.ts'
+import { engineSettings, forecastInputsOf, storedWeekIsCurrent } from '../forecast/fieldInputs.ts'
+import { engineTask } from '../forecast/inputs.ts'
+import { toStoredHour } from '../forecast/storedHour.ts'
+import { enqueueForecast, enqueueJob } from '../queue/enqueue.ts'
 import { feedUrlOf, fetchOrbitFeed } from '../services/orbitFeed.ts'
 import { fetchKpFeed, kpFeedUrlOf } from '../services/spaceWeather.ts'
-import { enqueueForecast, enqueueJob, withDeadlockRetry } from './enqueue.ts'
-import { engineTask, inputsVersion, type EngineSettings } from './inputs.ts'
-import { loadOrbitInputs } from './orbitInputs.ts'
-import { fieldCorrection, loadCorrectionInputs, withCorrection } from './correctionInputs.ts'
+import { withCorrection } from '../forecast/correctionInputs.ts'
+import type { Store } from '../db/repositories/index.ts'
 import type { JobContext, JobHandler, JobOutcome } from './runner.ts'
-
-/** Elevation mask of the stored forecasts (deg), the engine's default. */
-export const FORECAST_MASK_DEG = 10
-
-export function engineSettings(config: { forecastStepMin: number; forecastSampleCount: number }): EngineSettings {
-  return { stepMin: config.forecastStepMin, sampleCount: config.forecastSampleCount, maskDeg: FORECAST_MASK_DEG }
-}
-
-/** One engine hour as a stored row. */
-export function toStoredHour(
-  fieldId: number,
-  h: HourAggregate,
-  meta: { jobId: number; inputsVersion: string; orbitSummary: string; computedAt: Date },
-): NewForecastHour {
-  return {
-    fieldId,
-    hourStart: new Date(h.startMs),
-    satsMin: h.satellites.min,
-    satsMedian: h.satellites.median,
-    hdopMedian: h.hdop.median,
-    hdopMax: h.hdop.max,
-    vdopMedian: h.vdop.median,
-    vdopMax: h.vdop.max,
-    pdopMax: h.pdopMax,
-    n1HdopMax: h.n1HdopMax,
-    h95MedianM: h.h95M.median,
-    h95MaxM: h.h95M.max,
-    v95MedianM: h.v95M.median,
-    v95MaxM: h.v95M.max,
-    noFixShare: h.noFixShare,
-    workJson: JSON.stringify(
-      Object.fromEntries(h.workTypes.map((w) => [w.id, { share: w.share, shareN1: w.shareN1, state: w.state, ...(w.reason ? { reason: w.reason } : {}) }])),
-    ),
-    extraJson: JSON.stringify({ samples: h.samples, ...(h.spaceWeather !== undefined ? { spaceWeather: h.spaceWeather } : {}) }),
-    orbitSummary: meta.orbitSummary.slice(0, 255),
-    inputsVersion: meta.inputsVersion,
-    jobId: meta.jobId,
-    computedAt: meta.computedAt,
-  }
-}
-
-/** Everything a field's forecast depends on, read from the database, with its version. */
-export async function forecastInputsOf(store: Store, fieldId: number, settings: EngineSettings, nowMs: number) {
-  const repos = store.repos
-  const field = await repos.forecasts.fieldWithSigma(fieldId)
-  if (!field) return null
-  const window = forecastWindow(nowMs, FORECAST_WINDOW_HOURS)
-  const [obstructions, workTypes, orbits, corrections] = await Promise.all([
-    repos.forecasts.obstructionsOfFarm(field.farmId),
-    repos.forecasts.activeWorkTypes(),
-    loadOrbitInputs(store),
-    loadCorrectionInputs(store, window),
-  ])
-  const correction = fieldCorrection(field, workTypes, corrections)
-  const version = inputsVersion({
-    field,
-    obstructions,
-    orbitVersion: orbits.version,
-    outages: orbits.outages,
-    workTypes,
-    windowStartMs: window.startMs,
-    windowHours: window.hours,
-    settings,
-    correction: correction.version,
-  })
-  return { field, obstructions, workTypes, orbits, window, version, correction }
-}
 
 export const forecastHandler: JobHandler = async (ctx: JobContext): Promise<JobOutcome> => {
   const { job, store, config } = ctx
@@ -91,26 +24,23 @@ export const forecastHandler: JobHandler = async (ctx: JobContext): Promise<JobO
   ctx.progress(0.02)
   if (ctx.payload.force !== true) {
     const meta = (await store.repos.forecasts.storedMeta([field.id])).get(field.id)
-    if (
-      meta &&
-      meta.hours === window.hours &&
-      meta.minVersion === version &&
-      meta.maxVersion === version &&
-      meta.firstHour?.getTime() === window.startMs
-    ) {
+    if (storedWeekIsCurrent(meta, window, version)) {
       return { summary: 'Already up to date; nothing recomputed.', inputsVersion: version, data: { skipped: true } }
     }
   }
-  const task = withCorrection(engineTask({
-    field,
-    obstructions: inputs.obstructions,
-    satellites: inputs.orbits.satellites,
-    outages: inputs.orbits.outages,
-    workTypes: inputs.workTypes,
-    windowStartMs: window.startMs,
-    windowHours: window.hours,
-    settings,
-  }), inputs.correction)
+  const task = withCorrection(
+    engineTask({
+      field,
+      obstructions: inputs.obstructions,
+      satellites: inputs.orbits.satellites,
+      outages: inputs.orbits.outages,
+      workTypes: inputs.workTypes,
+      windowStartMs: window.startMs,
+      windowHours: window.hours,
+      settings,
+    }),
+    inputs.correction,
+  )
   const result = await ctx.pool.run(task, (f) => ctx.progress(0.05 + 0.9 * f))
   if (ctx.signal.aborted) throw ctx.signal.reason
   if (result.hours.length !== window.hours) {

@@ -8,12 +8,13 @@ import { forecastWindow, FORECAST_WINDOW_HOURS } from '../../shared/schemas/fore
 import type { Config } from '../config.ts'
 import type { Store } from '../db/repositories/index.ts'
 import type { Logger } from '../logger.ts'
-import { enqueueForecast, enqueueJob } from './enqueue.ts'
+import { enqueueForecast, enqueueJob } from '../queue/enqueue.ts'
 import { EnginePool } from './enginePool.ts'
-import { defaultHandlers, engineSettings, enqueueSpaceWeather } from './handlers.ts'
-import { inputsVersion } from './inputs.ts'
-import { loadOrbitInputs } from './orbitInputs.ts'
-import { fieldCorrection, loadCorrectionInputs } from './correctionInputs.ts'
+import { engineSettings, storedWeekIsCurrent } from '../forecast/fieldInputs.ts'
+import { defaultHandlers, enqueueSpaceWeather } from './handlers.ts'
+import { fieldCorrection, loadCorrectionInputs } from '../forecast/correctionInputs.ts'
+import { inputsVersion } from '../forecast/inputs.ts'
+import { loadOrbitInputs } from '../forecast/orbitInputs.ts'
 import { JobRunner, type JobHandler } from './runner.ts'
 import { registerForecastTriggers } from './triggers.ts'
 
@@ -54,14 +55,7 @@ export async function stalenessSweep(store: Store, config: Config, nowMs = Date.
       settings,
       correction: fieldCorrection(field, workTypes, corrections).version,
     })
-    const m = meta.get(field.id)
-    const current =
-      m !== undefined &&
-      m.hours === window.hours &&
-      m.firstHour?.getTime() === window.startMs &&
-      m.minVersion === version &&
-      m.maxVersion === version
-    if (current) continue
+    if (storedWeekIsCurrent(meta.get(field.id), window, version)) continue
     const { created } = await enqueueForecast(store, { fieldId: field.id, farmId: field.farmId, reason: 'start-up' }, 'reuse-pending')
     if (created) queued++
   }

@@ -20,7 +20,7 @@ import {
   scheduleJobKey,
   sendPlan,
 } from '../services/plansCompose.ts'
-import { enqueueJob } from './enqueue.ts'
+import { enqueueJob } from '../queue/enqueue.ts'
 import { errorText, type JobHandler } from './runner.ts'
 
 /** The Message-ID of a delivery: stable for its idempotency key. */

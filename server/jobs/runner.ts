@@ -9,7 +9,7 @@ import type { Config } from '../config.ts'
 import type { Store } from '../db/repositories/index.ts'
 import type { JobRow } from '../db/schema-planning.ts'
 import type { Logger } from '../logger.ts'
-import { onEnqueued } from './enqueue.ts'
+import { onEnqueued } from '../queue/enqueue.ts'
 import type { EnginePool } from './enginePool.ts'
 
 /** What a handler gets for one run of a job. */

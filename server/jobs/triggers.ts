@@ -6,7 +6,7 @@ import type { JobReason } from '../../shared/schemas/jobs.ts'
 import type { Store } from '../db/repositories/index.ts'
 import { on } from '../events.ts'
 import type { Logger } from '../logger.ts'
-import { enqueueForecast } from './enqueue.ts'
+import { enqueueForecast } from '../queue/enqueue.ts'
 
 const HOUR_MS = 3_600_000
 

@@ -16,20 +16,8 @@ import {
 import { currentAuth, requireRole } from '../auth/middleware.ts'
 import { HttpError } from '../http/errors.ts'
 import { parse } from '../http/validate.ts'
-import { escapeHtml } from '../mail/templates.ts'
+import { brokenLinkPage, optedOutPage, optOutQuestionPage } from '../mail/optOutPages.ts'
 import type { Services } from '../services/index.ts'
-
-function page(title: string, body: string): string {
-  return `<!doctype html>
-<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1"><title>${escapeHtml(title)}</title></head>
-<body style="margin:0;padding:16px;background:#f4f1ea;font-family:'Open Sans',Arial,sans-serif;color:#1f2a36;line-height:1.5">
-<main style="max-width:480px;margin:2em auto;background:#fff;border-radius:8px;padding:24px">
-<h1 style="font-size:20px;margin:0 0 14px;color:#00204d">${escapeHtml(title)}</h1>
-${body}
-</main></body></html>`
-}
-
-const button = 'background:#00204d;color:#fff;border:0;border-radius:6px;padding:10px 18px;font-size:15px;cursor:pointer'
 
 export function planRoutes(services: Services): Router {
   const router = Router()
@@ -98,22 +86,11 @@ export function planRoutes(services: Services): Router {
     try {
       const { token } = parse(optOutTokenSchema, req.query, 'link')
       const info = await plans.optOutInfo(token)
-      if (info.optedOut) {
-        res.send(page('You are opted out', `<p>${escapeHtml(info.email)} receives no more weekly plans of <strong>${escapeHtml(info.farmName)}</strong>.</p><p>To receive them again, ask the office.</p>`))
-        return
-      }
-      res.send(
-        page(
-          'Stop receiving weekly plans?',
-          `<p>The weekly plans of <strong>${escapeHtml(info.farmName)}</strong> will no longer be sent to <strong>${escapeHtml(info.email)}</strong>.</p>
-<form method="post" action="opt-out"><input type="hidden" name="token" value="${escapeHtml(token)}"><button type="submit" style="${button}">Stop the weekly plans</button></form>
-<p style="color:#5b6570;font-size:13px;margin-top:16px">You can ask the office to include you again at any time.</p>`,
-        ),
-      )
+      res.send(info.optedOut ? optedOutPage(info, true) : optOutQuestionPage(info, token))
     } catch (error) {
       const status = error instanceof HttpError ? error.status : 500
       if (status >= 500) throw error
-      res.status(status).send(page('This link does not work', `<p>${escapeHtml((error as Error).message)}</p>`))
+      res.status(status).send(brokenLinkPage((error as Error).message))
     }
   })
 
@@ -127,13 +104,11 @@ export function planRoutes(services: Services): Router {
         res.json(info)
         return
       }
-      res
-        .type('html')
-        .send(page('You are opted out', `<p>${escapeHtml(info.email)} will receive no more weekly plans of <strong>${escapeHtml(info.farmName)}</strong>.</p><p>To receive them again, ask the office.</p>`))
+      res.type('html').send(optedOutPage(info, false))
     } catch (error) {
       const status = error instanceof HttpError ? error.status : 500
       if (status >= 500 || !wantsHtml) throw error
-      res.status(status).type('html').send(page('This link does not work', `<p>${escapeHtml((error as Error).message)}</p>`))
+      res.status(status).type('html').send(brokenLinkPage((error as Error).message))
     }
   })
 

@@ -21,7 +21,7 @@ import type { Repositories } from '../db/repositories/index.ts'
 import type { PassDetailRow } from '../db/repositories/passes.ts'
 import { on } from '../events.ts'
 import type { ServiceContext } from './context.ts'
-import { toPass } from './passes.ts'
+import { toPass } from './passView.ts'
 import { planningHours } from './windows.ts'
 
 /** How far ahead a suggested window may start (the stored forecast covers about a week). */

@@ -1,6 +1,7 @@
 import type { Auth } from '../auth/lucia.ts'
 import type { Config } from '../config.ts'
-import type { Store } from '../db/repositories/index.ts'
+import { UniqueViolation, type Store } from '../db/repositories/index.ts'
+import { conflict } from '../http/errors.ts'
 import type { Logger } from '../logger.ts'
 import type { Mailer } from '../mail/transport.ts'
 
@@ -22,4 +23,14 @@ export const INVITE_LINK_DAYS = 7
 
 export function pageOf<T>(items: T[], total: number, query: { page: number; pageSize: number }) {
   return { items, total, page: query.page, pageSize: query.pageSize }
+}
+
+/**
+ * Rethrows a transaction's unique-key violation as a 409 naming the form field, anything
+ * else as it is. For the race the service's own "is it taken?" check cannot see: two
+ * requests creating the same name at once.
+ */
+export function rethrowUniqueAsConflict(error: unknown, message: string, field: string): never {
+  if (error instanceof UniqueViolation) throw conflict(message, { [field]: message })
+  throw error
 }

@@ -23,7 +23,7 @@ import type { BaseStationRow, CorrectionNetworkRow } from '../db/schema-planning
 import { emit } from '../events.ts'
 import { badRequest, conflict, notFound } from '../http/errors.ts'
 import { boundaryProblems } from '../imports/geometry.ts'
-import { fieldLink, sourcesOf } from '../jobs/correctionInputs.ts'
+import { fieldLink, sourcesOf } from '../forecast/correctionInputs.ts'
 import type { ServiceContext } from './context.ts'
 
 const BASE_TAKEN = 'A base station with this name already exists.'

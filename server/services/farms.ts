@@ -4,10 +4,9 @@ import type { Page } from '../../shared/schemas/common.ts'
 import type { Farm, FarmInput, FarmListQuery, FarmPatch } from '../../shared/schemas/farms.ts'
 import { assertFarmVisible, visibleFarmIds } from '../auth/access.ts'
 import type { Repositories } from '../db/repositories/index.ts'
-import { isDuplicateKey } from '../db/repositories/util.ts'
 import type { FarmRow } from '../db/schema.ts'
 import { badRequest, conflict, notFound } from '../http/errors.ts'
-import { pageOf, type ServiceContext } from './context.ts'
+import { pageOf, rethrowUniqueAsConflict, type ServiceContext } from './context.ts'
 
 const NAME_TAKEN = 'A farm with this name already exists.'
 
@@ -49,11 +48,6 @@ export function createFarmsService(ctx: ServiceContext) {
     return toFarm(row, clients.get(id) ?? [])
   }
 
-  function rethrowDuplicate(error: unknown): never {
-    if (isDuplicateKey(error)) throw conflict(NAME_TAKEN, { name: NAME_TAKEN })
-    throw error
-  }
-
   return {
     async list(user: SessionUser, query: FarmListQuery): Promise<Page<Farm>> {
       const { rows, total } = await store.repos.farms.list({ ...query, onlyIds: visibleFarmIds(user) })
@@ -85,7 +79,7 @@ export function createFarmsService(ctx: ServiceContext) {
           return load(repos, id)
         })
       } catch (error) {
-        rethrowDuplicate(error)
+        rethrowUniqueAsConflict(error, NAME_TAKEN, 'name')
       }
     },
 
@@ -103,7 +97,7 @@ export function createFarmsService(ctx: ServiceContext) {
           return load(repos, id)
         })
       } catch (error) {
-        rethrowDuplicate(error)
+        rethrowUniqueAsConflict(error, NAME_TAKEN, 'name')
       }
     },
 

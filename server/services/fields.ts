@@ -8,12 +8,11 @@ import { UNUSUAL_AREA_LIMITS_HA, type Field, type FieldInput, type FieldPatch } 
 import { assertFarmVisible } from '../auth/access.ts'
 import type { Repositories } from '../db/repositories/index.ts'
 import type { NewField } from '../db/repositories/fields.ts'
-import { isDuplicateKey } from '../db/repositories/util.ts'
 import type { FieldRow } from '../db/schema-planning.ts'
 import { emit } from '../events.ts'
 import { badRequest, conflict, HttpError, notFound } from '../http/errors.ts'
 import { AC_PER_HA, boundaryProblems, measureBoundary, type BoundaryMeasure } from '../imports/geometry.ts'
-import type { ServiceContext } from './context.ts'
+import { rethrowUniqueAsConflict, type ServiceContext } from './context.ts'
 
 const round = (x: number, digits: number) => Math.round(x * 10 ** digits) / 10 ** digits
 
@@ -93,7 +92,7 @@ export function createFieldsService(ctx: ServiceContext) {
   }
 
   function rethrowDuplicate(error: unknown, name: string | undefined): never {
-    if (isDuplicateKey(error) && name) throw conflict(nameTakenMessage(name), { name: nameTakenMessage(name) })
+    if (name) rethrowUniqueAsConflict(error, nameTakenMessage(name), 'name')
     throw error
   }
 

@@ -11,49 +11,15 @@ import {
   type FieldForecastResponse,
   type ForecastHour,
   type ForecastQuery,
-  type WorkTypeHour,
 } from '../../shared/schemas/forecast.ts'
 import { canSeeFarm } from '../auth/access.ts'
 import type { PendingForecastJob, StoredForecastMeta } from '../db/repositories/forecasts.ts'
-import type { ForecastHourRow, JobRow, WorkTypeRow } from '../db/schema-planning.ts'
+import type { JobRow, WorkTypeRow } from '../db/schema-planning.ts'
+import { toForecastHour } from '../forecast/storedHour.ts'
 import { notFound } from '../http/errors.ts'
 import type { ServiceContext } from './context.ts'
 
 const HOUR_MS = 3_600_000
-
-export function toForecastHour(row: ForecastHourRow): ForecastHour {
-  let workTypes: Record<string, WorkTypeHour> = {}
-  try {
-    workTypes = JSON.parse(row.workJson) as Record<string, WorkTypeHour>
-  } catch {
-    workTypes = {}
-  }
-  let spaceWeather: ForecastHour['spaceWeather']
-  try {
-    const extra = row.extraJson ? (JSON.parse(row.extraJson) as { spaceWeather?: ForecastHour['spaceWeather'] }) : {}
-    spaceWeather = extra.spaceWeather
-  } catch {
-    spaceWeather = undefined
-  }
-  return {
-    time: row.hourStart.toISOString(),
-    satsMin: row.satsMin,
-    satsMedian: row.satsMedian,
-    hdopMedian: row.hdopMedian,
-    hdopMax: row.hdopMax,
-    vdopMedian: row.vdopMedian,
-    vdopMax: row.vdopMax,
-    pdopMax: row.pdopMax,
-    n1HdopMax: row.n1HdopMax,
-    h95MedianM: row.h95MedianM,
-    h95MaxM: row.h95MaxM,
-    v95MedianM: row.v95MedianM,
-    v95MaxM: row.v95MaxM,
-    noFixShare: row.noFixShare,
-    workTypes,
-    ...(spaceWeather !== undefined ? { spaceWeather } : {}),
-  }
-}
 
 /** Whether stored hours may not match the current inputs (see FieldForecastResponse.stale). */
 export function isStale(meta: StoredForecastMeta | undefined, pending: PendingForecastJob | JobRow | null | undefined, nowMs: number): boolean {

@@ -11,12 +11,10 @@ import type { HourDetail, HourDetailPoint, StoredHourFigures } from '../../share
 import { assertFarmVisible } from '../auth/access.ts'
 import type { ForecastHourRow } from '../db/schema-planning.ts'
 import { badRequest, notFound } from '../http/errors.ts'
-import { engineSettings } from '../jobs/handlers.ts'
-import { engineWorkTypes, obstructionCollection, outagesInWindow } from '../jobs/inputs.ts'
-import { loadOrbitInputs } from '../jobs/orbitInputs.ts'
-import { fieldCorrection, loadCorrectionInputs } from '../jobs/correctionInputs.ts'
+import { engineSettings, inputsOfField } from '../forecast/fieldInputs.ts'
+import { engineWorkTypes, obstructionCollection, outagesInWindow } from '../forecast/inputs.ts'
 import type { ServiceContext } from './context.ts'
-import { toForecastHour } from './forecasts.ts'
+import { toForecastHour } from '../forecast/storedHour.ts'
 
 /** How far from now an hour's detail may be asked for (the engine can compute any hour, but pages show the week). */
 const MAX_DISTANCE_MS = 60 * 24 * HOUR_MS
@@ -56,14 +54,10 @@ export function createHourDetailService(ctx: ServiceContext) {
         throw badRequest('Ask for an hour within 60 days of today.', { hour: 'Choose an hour within 60 days of today.' })
       }
       const farm = await repos.farms.findById(field.farmId)
-      const [obstructionRows, workTypeRows, orbits, storedRows, corrections] = await Promise.all([
-        repos.forecasts.obstructionsOfFarm(field.farmId),
-        repos.forecasts.activeWorkTypes(),
-        loadOrbitInputs(store),
+      const [{ obstructions: obstructionRows, workTypes: workTypeRows, orbits, correction }, storedRows] = await Promise.all([
+        inputsOfField(store, field, { startMs: hourStart, endMs: hourStart + HOUR_MS }),
         repos.forecasts.hours([field.id], new Date(hourStart), new Date(hourStart + HOUR_MS)),
-        loadCorrectionInputs(store, { startMs: hourStart, endMs: hourStart + HOUR_MS }),
       ])
-      const correction = fieldCorrection(field, workTypeRows, corrections)
       const names = new Map(workTypeRows.map((w) => [w.id, w.name]))
       const settings = engineSettings(config)
       const obstructions = obstructionCollection(obstructionRows)

@@ -6,7 +6,7 @@ import type { SessionUser } from '../../shared/schemas/auth.ts'
 import { boundarySchema, type Boundary } from '../../shared/schemas/geo.ts'
 import type { Field, FieldImportOptions, FieldImportResult, ImportFeature, ImportPreview } from '../../shared/schemas/fields.ts'
 import { assertFarmVisible } from '../auth/access.ts'
-import { isDuplicateKey } from '../db/repositories/util.ts'
+import { UniqueViolation } from '../db/repositories/index.ts'
 import { emit } from '../events.ts'
 import { HttpError, badRequest, conflict, notFound } from '../http/errors.ts'
 import { boundaryProblems, measureBoundary } from '../imports/geometry.ts'
@@ -217,7 +217,7 @@ export function createImportsService(ctx: ServiceContext) {
           return out
         })
       } catch (error) {
-        if (isDuplicateKey(error)) throw conflict('One of the chosen names was just used on this farm by someone else; choose again.')
+        if (error instanceof UniqueViolation) throw conflict('One of the chosen names was just used on this farm by someone else; choose again.')
         throw error
       }
       for (const field of created) void emit('field.changed', { fieldId: field.id, farmId, deleted: false })

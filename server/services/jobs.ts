@@ -6,7 +6,7 @@ import { assertFarmVisible } from '../auth/access.ts'
 import type { JobListRow } from '../db/repositories/jobs.ts'
 import type { JobRow } from '../db/schema-planning.ts'
 import { notFound } from '../http/errors.ts'
-import { enqueueForecast } from '../jobs/enqueue.ts'
+import { enqueueForecast } from '../queue/enqueue.ts'
 import type { ServiceContext } from './context.ts'
 
 function parseJson(text: string | null): Record<string, unknown> {

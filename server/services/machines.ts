@@ -1,9 +1,8 @@
 // Machines and their crews: everyone signed in reads them; admins create, change, delete.
 import type { Machine, MachineInput, MachinePatch } from '../../shared/schemas/planning.ts'
-import { isDuplicateKey } from '../db/repositories/util.ts'
 import type { MachineRow } from '../db/schema-planning.ts'
 import { conflict, notFound } from '../http/errors.ts'
-import type { ServiceContext } from './context.ts'
+import { rethrowUniqueAsConflict, type ServiceContext } from './context.ts'
 
 const NAME_TAKEN = 'A machine with this name already exists.'
 
@@ -17,11 +16,6 @@ export function toMachine(row: MachineRow): Machine {
     active: row.active,
     notes: row.notes,
   }
-}
-
-function rethrowDuplicate(error: unknown): never {
-  if (isDuplicateKey(error)) throw conflict(NAME_TAKEN, { name: NAME_TAKEN })
-  throw error
 }
 
 export function createMachinesService(ctx: ServiceContext) {
@@ -46,7 +40,7 @@ export function createMachinesService(ctx: ServiceContext) {
           return toMachine((await repos.machines.findById(id))!)
         })
       } catch (error) {
-        rethrowDuplicate(error)
+        rethrowUniqueAsConflict(error, NAME_TAKEN, 'name')
       }
     },
 
@@ -62,7 +56,7 @@ export function createMachinesService(ctx: ServiceContext) {
           return toMachine((await repos.machines.findById(id))!)
         })
       } catch (error) {
-        rethrowDuplicate(error)
+        rethrowUniqueAsConflict(error, NAME_TAKEN, 'name')
       }
     },
 

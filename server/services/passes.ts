@@ -16,41 +16,13 @@ import {
 import { assertFarmVisible, visibleFarmIds } from '../auth/access.ts'
 import type { Repositories } from '../db/repositories/index.ts'
 import type { NewPass, PassDetailRow } from '../db/repositories/passes.ts'
+import { withDeadlockRetry } from '../db/retry.ts'
 import type { FieldRow, MachineRow, WorkTypeRow } from '../db/schema-planning.ts'
 import { badRequest, conflict, HttpError, notFound } from '../http/errors.ts'
 import { assessPass } from './atRisk.ts'
 import type { ServiceContext } from './context.ts'
+import { toPass } from './passView.ts'
 import { estimatedDuration } from './windows.ts'
-
-export function toPass(row: PassDetailRow): Pass {
-  const start = row.startAt.getTime()
-  return {
-    id: row.id,
-    farmId: row.farmId,
-    farmName: row.farmName,
-    timeZone: row.timeZone,
-    fieldId: row.fieldId,
-    fieldName: row.fieldName,
-    fieldAreaHa: row.fieldAreaHa,
-    workTypeId: row.workTypeId,
-    workTypeName: row.workTypeName,
-    requiresClear: row.requireN1,
-    machineId: row.machineId,
-    machineName: row.machineName,
-    crew: row.crew,
-    start: row.startAt.toISOString(),
-    end: new Date(start + row.durationMin * MINUTE_MS).toISOString(),
-    durationMin: row.durationMin,
-    status: row.status,
-    atRisk: row.atRisk,
-    atRiskReason: row.atRiskReason,
-    suggestedStart: row.suggestedStartAt?.toISOString() ?? null,
-    notes: row.notes,
-    createdBy: row.createdBy,
-    createdAt: row.createdAt.toISOString(),
-    updatedAt: row.updatedAt.toISOString(),
-  }
-}
 
 /** "Planting on North 40 (Hollis Creek Farms), Thu 3 Dec 08:00 CST to 14:00 CST" */
 export function describePass(p: Pick<PassDetailRow, 'workTypeName' | 'fieldName' | 'farmName' | 'startAt' | 'durationMin' | 'timeZone'>): string {
@@ -59,17 +31,6 @@ export function describePass(p: Pick<PassDetailRow, 'workTypeName' | 'fieldName'
   const endLabel = localLabel(end, p.timeZone)
   const sameDay = localDate(start, p.timeZone) === localDate(end, p.timeZone)
   return `${p.workTypeName} on ${p.fieldName} (${p.farmName}), ${localLabel(start, p.timeZone)} to ${sameDay ? endLabel.replace(/^\S+ \S+ \S+ /, '') : endLabel}`
-}
-
-/** MariaDB's deadlock and lock-wait errors: the transaction may simply be run again. */
-function isLockRetryable(error: unknown): boolean {
-  let e: unknown = error
-  for (let depth = 0; e && depth < 4; depth++) {
-    const code = (e as { code?: string }).code
-    if (code === 'ER_LOCK_DEADLOCK' || code === 'ER_LOCK_WAIT_TIMEOUT') return true
-    e = (e as { cause?: unknown }).cause
-  }
-  return false
 }
 
 interface Resolved {
@@ -81,16 +42,8 @@ interface Resolved {
 export function createPassesService(ctx: ServiceContext) {
   const { store } = ctx
 
-  /** Runs a booking transaction, once more after a deadlock (the other booking has then committed). */
-  async function bookingTransaction<T>(work: (repos: Repositories) => Promise<T>): Promise<T> {
-    for (let attempt = 1; ; attempt++) {
-      try {
-        return await store.transaction(work)
-      } catch (error) {
-        if (attempt >= 3 || !isLockRetryable(error)) throw error
-      }
-    }
-  }
+  /** Runs a booking transaction, again after a deadlock (the other booking has then committed). */
+  const bookingTransaction = <T>(work: (repos: Repositories) => Promise<T>) => withDeadlockRetry(store, work, { attempts: 3 })
 
   /** Looks up what a pass refers to: 400 naming the field of the request that is wrong. */
   async function resolve(

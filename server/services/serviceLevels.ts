@@ -1,11 +1,10 @@
 // Correction service levels: everyone signed in reads them; admins create, change, delete.
 // A change of sigma re-forecasts the fields (and work types) that use the level.
 import type { ServiceLevel, ServiceLevelInput, ServiceLevelPatch } from '../../shared/schemas/planning.ts'
-import { isDuplicateKey } from '../db/repositories/util.ts'
 import type { ServiceLevelRow } from '../db/schema-planning.ts'
 import { emit } from '../events.ts'
 import { conflict, notFound } from '../http/errors.ts'
-import type { ServiceContext } from './context.ts'
+import { rethrowUniqueAsConflict, type ServiceContext } from './context.ts'
 
 const NAME_TAKEN = 'A service level with this name already exists.'
 
@@ -31,11 +30,6 @@ export function listNames(names: string[], max = 4): string {
   return `${shown.slice(0, -1).join(', ')} and ${shown[shown.length - 1]}`
 }
 
-function rethrowDuplicate(error: unknown): never {
-  if (isDuplicateKey(error)) throw conflict(NAME_TAKEN, { name: NAME_TAKEN })
-  throw error
-}
-
 export function createServiceLevelsService(ctx: ServiceContext) {
   const { store } = ctx
 
@@ -58,7 +52,7 @@ export function createServiceLevelsService(ctx: ServiceContext) {
           return toServiceLevel((await repos.serviceLevels.findById(id))!)
         })
       } catch (error) {
-        rethrowDuplicate(error)
+        rethrowUniqueAsConflict(error, NAME_TAKEN, 'name')
       }
     },
 
@@ -81,7 +75,7 @@ export function createServiceLevelsService(ctx: ServiceContext) {
           return toServiceLevel((await repos.serviceLevels.findById(id))!)
         })
       } catch (error) {
-        rethrowDuplicate(error)
+        rethrowUniqueAsConflict(error, NAME_TAKEN, 'name')
       }
       if (sigmaChanged) void emit('planning.changed', { serviceLevelIds: [id] })
       return result

@@ -5,12 +5,13 @@ import type { Page } from '../../shared/schemas/common.ts'
 import type { User, UserInvite, UserListQuery, UserPatch } from '../../shared/schemas/users.ts'
 import type { SessionUser } from '../../shared/schemas/auth.ts'
 import type { Repositories } from '../db/repositories/index.ts'
-import { isDuplicateKey } from '../db/repositories/util.ts'
 import type { UserRow } from '../db/schema.ts'
 import { newLinkToken } from '../auth/password.ts'
 import { badRequest, conflict, HttpError, notFound } from '../http/errors.ts'
 import { inviteMail } from '../mail/templates.ts'
-import { INVITE_LINK_DAYS, pageOf, type ServiceContext } from './context.ts'
+import { INVITE_LINK_DAYS, pageOf, rethrowUniqueAsConflict, type ServiceContext } from './context.ts'
+
+const EMAIL_TAKEN = 'A user with this e-mail already exists.'
 
 export function toUser(row: UserRow, farmIds: number[]): User {
   return {
@@ -97,7 +98,7 @@ export function createUsersService(ctx: ServiceContext) {
       try {
         const id = await store.transaction(async (repos) => {
           if (await repos.users.findByEmail(input.email)) {
-            throw conflict('A user with this e-mail already exists.', { email: 'A user with this e-mail already exists.' })
+            throw conflict(EMAIL_TAKEN, { email: EMAIL_TAKEN })
           }
           const farmIds = await checkFarmIds(repos, input.role, input.farmIds)
           const userId = await repos.users.insert({ email: input.email, name: input.name, role: input.role })
@@ -109,10 +110,7 @@ export function createUsersService(ctx: ServiceContext) {
         })
         return await this.get(id)
       } catch (error) {
-        if (isDuplicateKey(error)) {
-          throw conflict('A user with this e-mail already exists.', { email: 'A user with this e-mail already exists.' })
-        }
-        throw error
+        rethrowUniqueAsConflict(error, EMAIL_TAKEN, 'email')
       }
     },
 

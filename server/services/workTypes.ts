@@ -2,11 +2,10 @@
 // of thresholds re-forecasts all fields (each stored hour carries a state per work type).
 import type { WorkType, WorkTypeInput, WorkTypePatch } from '../../shared/schemas/planning.ts'
 import type { Repositories } from '../db/repositories/index.ts'
-import { isDuplicateKey } from '../db/repositories/util.ts'
 import type { WorkTypeRow } from '../db/schema-planning.ts'
 import { emit } from '../events.ts'
 import { badRequest, conflict, notFound } from '../http/errors.ts'
-import type { ServiceContext } from './context.ts'
+import { rethrowUniqueAsConflict, type ServiceContext } from './context.ts'
 
 const NAME_TAKEN = 'A work type with this name already exists.'
 
@@ -26,11 +25,6 @@ export function toWorkType(row: WorkTypeRow): WorkType {
     active: row.active,
     stormAction: row.stormAction,
   }
-}
-
-function rethrowDuplicate(error: unknown): never {
-  if (isDuplicateKey(error)) throw conflict(NAME_TAKEN, { name: NAME_TAKEN })
-  throw error
 }
 
 async function checkServiceLevel(repos: Repositories, id: number): Promise<void> {
@@ -66,7 +60,7 @@ export function createWorkTypesService(ctx: ServiceContext) {
           return toWorkType((await repos.workTypes.findById(id))!)
         })
       } catch (error) {
-        rethrowDuplicate(error)
+        rethrowUniqueAsConflict(error, NAME_TAKEN, 'name')
       }
       if (result.active) void emit('planning.changed', { serviceLevelIds: 'all' })
       return result
@@ -89,7 +83,7 @@ export function createWorkTypesService(ctx: ServiceContext) {
           return toWorkType((await repos.workTypes.findById(id))!)
         })
       } catch (error) {
-        rethrowDuplicate(error)
+        rethrowUniqueAsConflict(error, NAME_TAKEN, 'name')
       }
       if (affectsForecasts) void emit('planning.changed', { serviceLevelIds: 'all' })
       return result

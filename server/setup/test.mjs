@@ -1,5 +1,5 @@
 // `npm test`: the same set-up as `npm start`, against a fresh, separate test database,
-// then type-check, lint, unit and API tests (real MariaDB) and browser tests (chromium).
+// then type-check, lint, the import rules, unit and API tests (real MariaDB) and browser tests (chromium).
 // Extra arguments are passed to Vitest, e.g. `npm test -- tests/api`.
 import { bin, ensureChromium, ensurePackages, log, run, startDatabase } from './lib.mjs'
 
@@ -21,6 +21,7 @@ try {
   if (vitestArgs.length === 0) {
     step('type-checking', bin('vue-tsc'), ['--build', '--force'])
     step('linting', bin('eslint'), ['.', '--max-warnings=0'])
+    step('checking imports (no cycles, services never import jobs)', bin('depcruise'), ['server', 'shared', 'src', 'seed', 'tests', '--config', '.dependency-cruiser.cjs'])
   }
   step('building the client for the browser tests', bin('vite'), ['build', '--logLevel', 'warn'])
   step('running the tests', bin('vitest'), ['run', ...vitestArgs])

@@ -13,8 +13,14 @@
  * With a baseline (errorModel.ts) the expected errors add 2 ppm_H b and 1.96 ppm_V b and
  * the DOP limits shrink accordingly; link closures and storm hours are applied after the
  * aggregation (correction.ts).
+ *
+ * Sources: 2DRMS = 2 sigma HDOP as the horizontal 95 % figure and 1.96 sigma VDOP (the
+ * normal distribution's two-sided 95 % point) as the vertical one, as in Kaplan & Hegarty,
+ * Understanding GPS/GNSS, 3rd ed., performance chapter (2DRMS is 95-98 % depending on the
+ * error ellipse). The Clear / Tight / Closed rule and the area-and-time weighting are
+ * the product's own (DESIGN.md), not a published method.
  */
-import type { HourAggregate, HourState, PointHourDetail, WorkType } from './forecast'
+import type { HourAggregate, HourState, PointHourDetail, WorkType } from './types'
 import type { SampleResults } from './kernel'
 import type { SamplePoint } from './sampling'
 

@@ -8,12 +8,11 @@
  *   with the reason 'storm'.
  * The geometric shares stay as computed; only the state and its reason change.
  */
-import type { HourAggregate, WorkType } from './forecast'
-import type { LinkReason } from './errorModel'
+import type { HourReason } from './errorModel'
+import type { HourAggregate, WorkType } from './types'
 import { hourSpaceWeather, stormState, STORM_G, type KpBlock } from './spaceWeather'
 
-/** Why an hour's state is worse than its geometry alone. */
-export type HourReason = LinkReason | 'storm'
+export type { HourReason }
 
 /**
  * Applies link closures and storm flags to one aggregated hour (returns it, changed in place).

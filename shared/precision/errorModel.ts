@@ -34,6 +34,9 @@ export const V95_FACTOR = 1.96
 /** Why a work type is closed regardless of geometry. */
 export type LinkReason = 'no-source' | 'out-of-range' | 'baseline-limit'
 
+/** Why an hour's state is worse than its geometry alone: the link, or a storm (correction.ts). */
+export type HourReason = LinkReason | 'storm'
+
 /** The baseline part of the error, as a ranging-like figure (m): ppm b / 1000. */
 export function baselinePartM(ppm: number, baselineKm: number): number {
   return (ppm * baselineKm) / 1000

@@ -9,6 +9,10 @@
  * the density-scaled distance picks the points; each candidate cell's area then goes
  * to its nearest point (a discrete Voronoi partition), so the weights add up to the
  * field's area.
+ *
+ * Sources: farthest-point sampling and the nearest-point (Voronoi) partition are
+ * textbook computational geometry; the density rule 1 + 3 exp(-d / L) and its clamps are
+ * common practice of our own (no published source).
  */
 import type { Feature, Geometry, MultiPolygon, Polygon, Position } from 'geojson'
 import { DEG } from './constants'

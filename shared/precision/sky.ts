@@ -1,6 +1,11 @@
 /**
  * Point forecast (the CLI's point mode) and the single-point sky view (for the
  * browser's Web Worker). Not hot: clarity first; DOP by dopFromDirections.
+ *
+ * Sources: azimuth and elevation in the local East-North-Up frame (IOGP 373-7-2, method
+ * 9836, see geodesy.ts); DOP as in dop.ts (Kaplan & Hegarty; Misra & Enge sec. 6.1); the
+ * N-1 margin by removing each satellite in turn and recomputing (brute force, no source
+ * needed); the horizon mask of horizon.ts.
  */
 import { RAD } from './constants'
 import { dopFromDirections, type DopValues } from './dop'

@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import type { HourState } from './planning'
+import { hourStates } from './planning'
 
 // Stored field forecasts: one row per field per UTC hour, replaced whole by each forecast
 // job. GET /api/fields/:id/forecast?from&to and GET /api/farms/:id/forecast?from&to.
@@ -40,40 +40,66 @@ export const forecastQuerySchema = z
 export type ForecastQuery = z.infer<typeof forecastQuerySchema>
 
 /** Share of the field meeting a work type in an hour, and the hour's state. */
-export interface WorkTypeHour {
+export const workTypeHourSchema = z.object({
   /** 0..1 of the field's samples meeting the thresholds */
-  share: number
+  share: z.number(),
   /** 0..1 meeting them with the most damaging satellite lost */
-  shareN1: number
-  state: HourState
-  /** why the state is worse than the geometry: the correction link or a storm (correction.ts) */
-  reason?: 'no-source' | 'out-of-range' | 'baseline-limit' | 'storm'
+  shareN1: z.number(),
+  state: z.enum(hourStates),
+  /** why the state is worse than the geometry: the correction link or a storm (shared/precision/correction.ts) */
+  reason: z.enum(['no-source', 'out-of-range', 'baseline-limit', 'storm']).optional(),
+})
+export type WorkTypeHour = z.infer<typeof workTypeHourSchema>
+
+/**
+ * The figures of one stored forecast hour, defined once. The stored row's columns
+ * (server/db/schema-planning.ts, one column per figure, named in snake case), the API's
+ * ForecastHour, the pass views' stored hour and both conversions (engine hour -> row,
+ * row -> API) are built from this schema. Adding a figure: add it here, give its
+ * computation from the engine's hour in server/forecast/storedHour.ts (the compiler asks
+ * for it), then generate the migration. Null: no fix at all in the hour. An integer
+ * figure is stored as SMALLINT, any other as DOUBLE; a figure that is never null is
+ * stored NOT NULL with 0 as its default.
+ */
+export const hourFiguresSchema = z.object({
+  /** satellites in use: fewest and median over the hour's samples */
+  satsMin: z.int().nullable(),
+  satsMedian: z.number().nullable(),
+  hdopMedian: z.number().nullable(),
+  hdopMax: z.number().nullable(),
+  vdopMedian: z.number().nullable(),
+  vdopMax: z.number().nullable(),
+  pdopMax: z.number().nullable(),
+  /** worst HDOP with one satellite lost; null when losing one can lose the fix */
+  n1HdopMax: z.number().nullable(),
+  /** expected errors at 95 % for the field's service level (m) */
+  h95MedianM: z.number().nullable(),
+  h95MaxM: z.number().nullable(),
+  v95MedianM: z.number().nullable(),
+  v95MaxM: z.number().nullable(),
+  /** 0..1 of sample-epochs without a fix */
+  noFixShare: z.number(),
+})
+export type HourFigures = z.infer<typeof hourFiguresSchema>
+/** The names of the hour figures, in schema order. */
+export const hourFigureNames = Object.keys(hourFiguresSchema.shape) as Array<keyof HourFigures>
+
+/** The figures of an object that carries them (a stored row, say), and nothing else. */
+export function pickHourFigures(source: HourFigures): HourFigures {
+  const out: Record<string, number | null> = {}
+  for (const name of hourFigureNames) out[name] = source[name]
+  return out as HourFigures
 }
 
-/** One stored hour of a field's forecast (UTC hour start). Null figures: no fix at all. */
-export interface ForecastHour {
-  time: string
-  satsMin: number | null
-  satsMedian: number | null
-  hdopMedian: number | null
-  hdopMax: number | null
-  vdopMedian: number | null
-  vdopMax: number | null
-  pdopMax: number | null
-  /** worst HDOP with one satellite lost; null when losing one can lose the fix */
-  n1HdopMax: number | null
-  /** expected errors at 95 % for the field's service level (m) */
-  h95MedianM: number | null
-  h95MaxM: number | null
-  v95MedianM: number | null
-  v95MaxM: number | null
-  /** 0..1 of sample-epochs without a fix */
-  noFixShare: number
+/** One stored hour of a field's forecast (UTC hour start), as the API sends it. */
+export const forecastHourSchema = hourFiguresSchema.extend({
+  time: z.string(),
   /** keyed by work type id (as text) */
-  workTypes: Record<string, WorkTypeHour>
+  workTypes: z.record(z.string(), workTypeHourSchema),
   /** highest Kp of the hour and its NOAA G level; null: no Kp forecast covers it; absent: stored before Kp data */
-  spaceWeather?: { kpMax: number; g: number } | null
-}
+  spaceWeather: z.object({ kpMax: z.number(), g: z.int() }).nullable().optional(),
+})
+export type ForecastHour = z.infer<typeof forecastHourSchema>
 
 /** A queued or running recompute of the field. */
 export interface PendingForecastJob {

@@ -4,6 +4,7 @@
 import { z } from 'zod'
 import { idSchema } from './common'
 import type { HourErrorBudget } from './corrections'
+import type { HourFigures } from './forecast'
 
 export const passStatuses = ['planned', 'confirmed', 'done', 'cancelled'] as const
 export type PassStatus = (typeof passStatuses)[number]
@@ -184,21 +185,8 @@ export interface HourWorkState {
 }
 
 /** The stored figures of one forecast hour (null: no fix or not computed). */
-export interface StoredHourFigures {
+export type StoredHourFigures = HourFigures & {
   hourStart: string
-  satsMin: number | null
-  satsMedian: number | null
-  hdopMedian: number | null
-  hdopMax: number | null
-  vdopMedian: number | null
-  vdopMax: number | null
-  pdopMax: number | null
-  n1HdopMax: number | null
-  h95MedianM: number | null
-  h95MaxM: number | null
-  v95MedianM: number | null
-  v95MaxM: number | null
-  noFixShare: number
   workTypes: HourWorkState[]
   orbitSummary: string
   computedAt: string

@@ -1,17 +1,16 @@
 /**
- * The Fields page's OpenLayers map: layers for fields, obstructions, an upload preview
- * and markers; the drawing tools; vertex editing with snapping; conversions between the
- * map's web-mercator features and the API's WGS-84 GeoJSON.
+ * The Fields page's OpenLayers map: the view, the layers for fields, obstructions, an
+ * upload preview and markers, and the records shown on them. The drawing and editing
+ * tools are useMapTools'; the pure geometry is in lib/farmGeometry, the conversions to
+ * the API's WGS-84 GeoJSON in components/map/geojson.
  *
  * Offline by default: a plain background, a graticule, a scale line and a north arrow
  * (in the page's template). An imagery tile URL from config is drawn underneath when set.
  */
-import { shallowRef, ref, type Ref } from 'vue'
-import * as turf from '@turf/turf'
+import { ref } from 'vue'
 import OlMap from 'ol/Map'
 import View from 'ol/View'
 import Feature from 'ol/Feature'
-import GeoJSON from 'ol/format/GeoJSON'
 import VectorLayer from 'ol/layer/Vector'
 import TileLayer from 'ol/layer/Tile'
 import Graticule from 'ol/layer/Graticule'
@@ -20,54 +19,24 @@ import XYZ from 'ol/source/XYZ'
 import ScaleLine from 'ol/control/ScaleLine'
 import Zoom from 'ol/control/Zoom'
 import Attribution from 'ol/control/Attribution'
-import { Draw, Modify, Select, Snap, defaults as defaultInteractions } from 'ol/interaction'
-import { Point, Polygon, MultiPolygon, LineString, type Geometry } from 'ol/geom'
+import { defaults as defaultInteractions } from 'ol/interaction'
+import { Point, type Geometry } from 'ol/geom'
 import { Stroke } from 'ol/style'
 import { fromLonLat, toLonLat } from 'ol/proj'
 import { createEmpty, extend, isEmpty } from 'ol/extent'
 import { unByKey } from 'ol/Observable'
-import { click } from 'ol/events/condition'
 import type { EventsKey } from 'ol/events'
-import type { FeatureCollection, LineString as GjLineString, Polygon as GjPolygon, MultiPolygon as GjMultiPolygon } from 'geojson'
+import type { FeatureCollection } from 'geojson'
 import type { UnitSystem } from '@shared/schemas'
 import type { Field, Obstruction } from '@shared/schemas/fields'
-import type { ObstructionKind } from '@shared/precision'
 import type { Boundary, ObstructionGeometry } from '@shared/schemas/geo'
 import { config } from '@/config'
 import { fieldStyle, markerStyle, obstructionStyle, previewStyle } from '@/components/map/styles'
+import { fromGeoJsonGeometry, toGeoJsonGeometry } from '@/components/map/geojson'
+import { areaHaOf } from '@/lib/farmGeometry'
+import { useMapTools, type MapFeature, type MapTool } from './useMapTools'
 
-export type MapTool = 'select' | 'draw-field' | 'add-part' | 'cut-hole' | 'tree-line' | 'woodlot' | 'building' | 'sky-check'
-
-export type MapFeature = Feature<Geometry>
-
-const geojson = new GeoJSON({ dataProjection: 'EPSG:4326', featureProjection: 'EPSG:3857' })
-
-/** Area (ha) of a WGS-84 polygon or multipolygon, on the ellipsoid-free sphere turf uses. */
-export function areaHaOf(boundary: Boundary | GjPolygon | GjMultiPolygon): number {
-  return turf.area(boundary as GjPolygon) / 10_000
-}
-
-/** A map geometry as WGS-84 GeoJSON geometry (coordinates rounded to about 1 cm). */
-export function toGeoJsonGeometry<T>(geometry: Geometry): T {
-  const g = geojson.writeGeometryObject(geometry, { decimals: 7 }) as unknown as T
-  return g
-}
-
-/** WGS-84 GeoJSON geometry -> map geometry. */
-export function fromGeoJsonGeometry(geometry: unknown): Geometry {
-  return geojson.readGeometry(geometry) as Geometry
-}
-
-/** Self-crossings of a boundary as [lon, lat] points (turf `kinks`). */
-export function boundaryCrossings(boundary: Boundary): [number, number][] {
-  const polys = boundary.type === 'Polygon' ? [boundary.coordinates] : boundary.coordinates
-  const out: [number, number][] = []
-  for (const coords of polys) {
-    const k = turf.kinks(turf.polygon(coords))
-    for (const p of k.features) out.push(p.geometry.coordinates as [number, number])
-  }
-  return out
-}
+export type { MapFeature, MapTool } from './useMapTools'
 
 export interface FarmMapOptions {
   units: () => UnitSystem
@@ -84,12 +53,6 @@ export interface FarmMapOptions {
 }
 
 export function useFarmMap(options: FarmMapOptions) {
-  const tool: Ref<MapTool> = ref('select')
-  const selected = shallowRef<MapFeature | null>(null)
-  /** Area (ha) of the boundary being drawn, while it is drawn. */
-  const sketchAreaHa = ref<number | null>(null)
-  /** Length (m) of the tree line being drawn. */
-  const sketchLengthM = ref<number | null>(null)
   /** Bumped whenever an obstruction changes (geometry or height): the sky check listens. */
   const obstructionRevision = ref(0)
   /** Bumped whenever a field changes. */
@@ -100,39 +63,40 @@ export function useFarmMap(options: FarmMapOptions) {
   const previewSource = new VectorSource<MapFeature>()
   const markerSource = new VectorSource<MapFeature>()
 
-  const selectedId = () => selected.value?.getId()
+  const selectedId = () => tools.selected.value?.getId()
   const fieldLayer = new VectorLayer({ source: fieldSource, style: fieldStyle(options.units, selectedId), zIndex: 10, declutter: 'labels' })
   const obstructionLayer = new VectorLayer({ source: obstructionSource, style: obstructionStyle(options.units, selectedId), zIndex: 20, declutter: 'labels' })
   const previewLayer = new VectorLayer({ source: previewSource, style: previewStyle, zIndex: 30 })
   const markerLayer = new VectorLayer({ source: markerSource, style: markerStyle, zIndex: 40 })
 
   let map: OlMap | null = null
-  let draw: Draw | null = null
   const keys: EventsKey[] = []
-  let newCounter = 0
 
-  const select = new Select({
-    layers: [fieldLayer, obstructionLayer],
-    condition: click,
-    hitTolerance: 6,
-    // The layers' own styles show the selection, so the Select overlay draws nothing.
-    style: null,
+  const tools = useMapTools({
+    fieldSource,
+    obstructionSource,
+    fieldLayer,
+    obstructionLayer,
+    addDrawn(feature, role) {
+      if (role === 'field') {
+        fieldSource.addFeature(feature)
+        watchFeature(feature, 'field')
+      } else {
+        obstructionSource.addFeature(feature)
+        watchFeature(feature, 'obstruction')
+        obstructionRevision.value++
+      }
+    },
+    onPartsChanged(feature) {
+      feature.set('areaHa', areaHaOf(toGeoJsonGeometry<Boundary>(feature.getGeometry()!)), true)
+      fieldRevision.value++
+    },
+    onSelect: options.onSelect,
+    onDrawn: options.onDrawn,
+    onGeometryEdited: options.onGeometryEdited,
+    onHint: options.onHint,
   })
-  const modify = new Modify({ features: select.getFeatures(), pixelTolerance: 10 })
-  const snaps = [new Snap({ source: fieldSource, pixelTolerance: 10 }), new Snap({ source: obstructionSource, pixelTolerance: 10 })]
-
-  select.on('select', () => {
-    const picked = select.getFeatures().item(0) ?? null
-    setSelected(picked)
-    options.onSelect(picked)
-  })
-  modify.on('modifyend', (event) => {
-    const feature = event.features.item(0) as MapFeature | undefined
-    if (feature) {
-      feature.set('dirty', true)
-      options.onGeometryEdited(feature)
-    }
-  })
+  const { selected, setSelected } = tools
 
   // Geometry changes of any field recompute its live area; of any obstruction, the revision.
   function watchFeature(feature: MapFeature, role: 'field' | 'obstruction'): void {
@@ -147,18 +111,6 @@ export function useFarmMap(options: FarmMapOptions) {
     }
     keys.push(feature.on('change', onGeometry))
     if (role === 'obstruction') keys.push(feature.on('propertychange', () => obstructionRevision.value++))
-  }
-
-  function setSelected(feature: MapFeature | null): void {
-    selected.value = feature
-    const features = select.getFeatures()
-    if (feature === null) features.clear()
-    else if (features.item(0) !== feature) {
-      features.clear()
-      features.push(feature)
-    }
-    fieldLayer.changed()
-    obstructionLayer.changed()
   }
 
   function mount(target: HTMLElement): void {
@@ -194,17 +146,14 @@ export function useFarmMap(options: FarmMapOptions) {
       interactions: defaultInteractions({ doubleClickZoom: false, altShiftDragRotate: false, pinchRotate: false }),
       view: new View({ center: fromLonLat([-93.5, 42.0]), zoom: 5, maxZoom: 21 }),
     })
-    map.addInteraction(select)
-    map.addInteraction(modify)
-    for (const snap of snaps) map.addInteraction(snap)
     keys.push(
       map.on('singleclick', (event) => {
-        if (tool.value !== 'sky-check') return
+        if (tools.tool.value !== 'sky-check') return
         const [lon, lat] = toLonLat(event.coordinate)
         options.onSkyPoint([lon, lat])
       }),
     )
-    setTool('select')
+    tools.attach(map)
   }
 
   function destroy(): void {
@@ -212,141 +161,7 @@ export function useFarmMap(options: FarmMapOptions) {
     keys.length = 0
     map?.setTarget(undefined)
     map = null
-  }
-
-  /** Switches the tool: drawing tools add a Draw interaction; select/sky-check remove it. */
-  function setTool(next: MapTool): void {
-    tool.value = next
-    if (!map) return
-    if (draw) {
-      map.removeInteraction(draw)
-      draw = null
-    }
-    sketchAreaHa.value = null
-    sketchLengthM.value = null
-    select.setActive(next === 'select')
-    modify.setActive(next === 'select')
-    if (next === 'select' || next === 'sky-check') return
-    const type = next === 'tree-line' ? 'LineString' : 'Polygon'
-    draw = new Draw({ type, stopClick: true })
-    draw.on('drawstart', (event) => {
-      const geometry = event.feature.getGeometry()
-      geometry?.on('change', () => {
-        const g = event.feature.getGeometry()
-        if (!g) return
-        if (g instanceof Polygon) {
-          const ring = g.getCoordinates()[0]
-          sketchAreaHa.value = ring && ring.length >= 4 ? areaHaOf(toGeoJsonGeometry<GjPolygon>(g)) : 0
-        } else if (g instanceof LineString) {
-          sketchLengthM.value = turf.length(turf.lineString(toGeoJsonGeometry<GjLineString>(g).coordinates), { units: 'meters' })
-        }
-      })
-    })
-    draw.on('drawend', (event) => {
-      sketchAreaHa.value = null
-      sketchLengthM.value = null
-      handleDrawn(event.feature as MapFeature, next)
-    })
-    map.addInteraction(draw)
-    // Snap must come after the interactions it serves.
-    for (const snap of snaps) {
-      map.removeInteraction(snap)
-      map.addInteraction(snap)
-    }
-  }
-
-  function handleDrawn(drawn: MapFeature, drawnWith: MapTool): void {
-    const geometry = drawn.getGeometry()
-    if (!geometry) return
-    if (drawnWith === 'add-part' || drawnWith === 'cut-hole') {
-      const target = selected.value?.get('role') === 'field' ? selected.value : fieldAt(geometry)
-      if (!target) {
-        options.onHint(drawnWith === 'add-part' ? 'Select a field first, then draw the part to add to it.' : 'Draw the hole inside a field.')
-        return
-      }
-      const ok = drawnWith === 'add-part' ? addPart(target, geometry as Polygon) : cutHole(target, geometry as Polygon)
-      if (ok) {
-        target.set('dirty', true)
-        setSelected(target)
-        options.onSelect(target)
-        options.onGeometryEdited(target)
-      }
-      // Back to editing after one part or hole, as after any drawing.
-      setTool('select')
-      return
-    }
-    const role = drawnWith === 'draw-field' ? 'field' : 'obstruction'
-    drawn.setId(`${role}:new:${++newCounter}`)
-    drawn.set('role', role)
-    drawn.set('dirty', true)
-    if (role === 'field') {
-      drawn.set('name', '')
-      drawn.set('areaHa', areaHaOf(toGeoJsonGeometry<Boundary>(geometry)))
-      fieldSource.addFeature(drawn)
-      watchFeature(drawn, 'field')
-    } else {
-      const kind: ObstructionKind = drawnWith === 'building' ? 'structure' : 'deciduous'
-      drawn.setProperties({
-        kind,
-        heightM: drawnWith === 'building' ? 8 : drawnWith === 'woodlot' ? 18 : 15,
-        // Counted all year until the user gives a leafless season (the cautious choice).
-        leaflessFrom: null,
-        leaflessTo: null,
-        note: '',
-      })
-      obstructionSource.addFeature(drawn)
-      watchFeature(drawn, 'obstruction')
-      obstructionRevision.value++
-    }
-    setTool('select')
-    setSelected(drawn)
-    options.onDrawn(drawn, drawnWith)
-  }
-
-  function fieldAt(geometry: Geometry): MapFeature | null {
-    const extent = geometry.getExtent()
-    const centre = [(extent[0] + extent[2]) / 2, (extent[1] + extent[3]) / 2]
-    return fieldSource.getFeaturesAtCoordinate(centre)[0] ?? null
-  }
-
-  function addPart(target: MapFeature, part: Polygon): boolean {
-    const g = target.getGeometry()
-    if (g instanceof Polygon) {
-      target.setGeometry(new MultiPolygon([g.getCoordinates(), part.getCoordinates()]))
-    } else if (g instanceof MultiPolygon) {
-      target.setGeometry(new MultiPolygon([...g.getCoordinates(), part.getCoordinates()]))
-    } else return false
-    target.set('areaHa', areaHaOf(toGeoJsonGeometry<Boundary>(target.getGeometry()!)), true)
-    fieldRevision.value++
-    return true
-  }
-
-  function cutHole(target: MapFeature, hole: Polygon): boolean {
-    const g = target.getGeometry()
-    const holeGj = toGeoJsonGeometry<GjPolygon>(hole)
-    const ring = hole.getCoordinates()[0]
-    if (g instanceof Polygon) {
-      const outer = turf.polygon([toGeoJsonGeometry<GjPolygon>(g).coordinates[0]])
-      if (!turf.booleanWithin(turf.polygon(holeGj.coordinates), outer)) {
-        options.onHint('A hole must lie wholly inside the field.')
-        return false
-      }
-      g.setCoordinates([...g.getCoordinates(), ring])
-      return true
-    }
-    if (g instanceof MultiPolygon) {
-      const parts = g.getCoordinates()
-      const gj = toGeoJsonGeometry<GjMultiPolygon>(g)
-      const i = gj.coordinates.findIndex((p) => turf.booleanWithin(turf.polygon(holeGj.coordinates), turf.polygon([p[0]])))
-      if (i < 0) {
-        options.onHint('A hole must lie wholly inside one part of the field.')
-        return false
-      }
-      parts[i] = [...parts[i], ring]
-      g.setCoordinates(parts)
-      return true
-    }
-    return false
+    tools.detach()
   }
 
   /** Replaces the fields on the map (keeps unsaved new ones). */
@@ -524,15 +339,15 @@ export function useFarmMap(options: FarmMapOptions) {
   }
 
   return {
-    tool,
+    tool: tools.tool,
     selected,
-    sketchAreaHa,
-    sketchLengthM,
+    sketchAreaHa: tools.sketchAreaHa,
+    sketchLengthM: tools.sketchLengthM,
     obstructionRevision,
     fieldRevision,
     mount,
     destroy,
-    setTool,
+    setTool: tools.setTool,
     setSelected,
     setFields,
     setObstructions,

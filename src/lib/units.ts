@@ -1,6 +1,7 @@
 /**
- * Metric and imperial display of areas, lengths and expected errors. Values are stored
- * and computed in SI (ha, m); only what is shown changes with the user's choice.
+ * Metric and imperial display of areas, lengths, rates and expected errors, and the
+ * other figures shown beside them (shares, DOP, durations). Values are stored and
+ * computed in SI (ha, m); only what is shown changes with the user's choice (useUnits).
  * Conversion factors are the exact international definitions (1 in = 25.4 mm,
  * 1 ft = 0.3048 m, 1 ac = 0.40468564224 ha).
  */
@@ -10,28 +11,42 @@ export const M_PER_IN = 0.0254
 export const M_PER_FT = 0.3048
 export const HA_PER_AC = 0.40468564224
 
-function trim(value: number, digits: number): string {
+/** A number rounded to `digits` decimals, as text without trailing zeros beyond them. @example roundTo(2.50, 2) // -> '2.5' */
+export function roundTo(value: number, digits: number): string {
   return value.toLocaleString('en-US', { maximumFractionDigits: digits, minimumFractionDigits: 0 })
 }
 
 /** An area: "12.3 ha" or "30.4 ac". @example formatArea(10, 'imperial') // -> '24.7 ac' */
 export function formatArea(ha: number | null | undefined, units: UnitSystem): string {
   if (ha === null || ha === undefined || !Number.isFinite(ha)) return '—'
-  if (units === 'imperial') return `${trim(ha / HA_PER_AC, 1)} ac`
-  return `${trim(ha, 1)} ha`
+  if (units === 'imperial') return `${roundTo(ha / HA_PER_AC, 1)} ac`
+  return `${roundTo(ha, 1)} ha`
+}
+
+/**
+ * An area with both units, the user's first (two decimals below 10).
+ * @example formatAreaBoth(0.5, 'metric') // -> '0.5 ha (1.24 ac)'
+ */
+export function formatAreaBoth(areaHa: number, units: UnitSystem): string {
+  const ha = `${roundTo(areaHa, areaHa < 10 ? 2 : 1)} ha`
+  const acres = areaHa / HA_PER_AC
+  const ac = `${roundTo(acres, acres < 10 ? 2 : 1)} ac`
+  return units === 'imperial' ? `${ac} (${ha})` : `${ha} (${ac})`
 }
 
 /** A work rate: "6 ha/h" or "14.8 ac/h". */
 export function formatRate(haPerH: number, units: UnitSystem): string {
-  if (units === 'imperial') return `${trim(haPerH / HA_PER_AC, 1)} ac/h`
-  return `${trim(haPerH, 1)} ha/h`
+  if (units === 'imperial') return `${roundTo(haPerH / HA_PER_AC, 1)} ac/h`
+  return `${roundTo(haPerH, 1)} ha/h`
 }
 
-/** A height or distance: "3.5 m" or "11.5 ft". */
-export function formatLengthM(m: number | null | undefined, units: UnitSystem): string {
-  if (m === null || m === undefined || !Number.isFinite(m)) return '—'
-  if (units === 'imperial') return `${trim(m / M_PER_FT, 1)} ft`
-  return `${trim(m, 1)} m`
+/** An obstruction or antenna height: one decimal below 10. @example formatHeight(3.048, 'imperial') // -> '10 ft' */
+export function formatHeight(heightM: number, units: UnitSystem): string {
+  if (units === 'imperial') {
+    const ft = heightM / M_PER_FT
+    return `${roundTo(ft, ft < 10 ? 1 : 0)} ft`
+  }
+  return `${roundTo(heightM, heightM < 10 ? 1 : 0)} m`
 }
 
 /** The unit an expected error is shown in: cm or in, or m or ft from 1 m / 3 ft up. */
@@ -58,7 +73,7 @@ export function errorUnit(largestM: number, units: UnitSystem): ErrorUnit {
 export function formatErrorM(m: number | null | undefined, units: UnitSystem, unit?: ErrorUnit): string {
   if (m === null || m === undefined || !Number.isFinite(m)) return '—'
   const u = unit ?? errorUnit(m, units)
-  return `${trim(m / u.perUnitM, u.digits)} ${u.label}`
+  return `${roundTo(m / u.perUnitM, u.digits)} ${u.label}`
 }
 
 /** A share 0..1 as a whole percentage. @example formatShare(0.953) // -> '95 %' */

@@ -169,6 +169,16 @@ describe('admin changes', () => {
     expect(rename.status).toBe(409)
   })
 
+  it('simultaneous creates of one name: one farm is made, the others get 409 naming the field, none a 500', async () => {
+    const name = unique('Same name ')
+    const results = await Promise.all(Array.from({ length: 4 }, () => admin.post('/api/farms', { name, timeZone: 'UTC' })))
+    const statuses = results.map((r) => r.status).sort()
+    expect(statuses).toEqual([201, 409, 409, 409])
+    for (const r of results.filter((x) => x.status === 409)) expect(r.body.error.fields.name).toMatch(/already exists/)
+    const listed = await admin.get(`/api/farms?q=${encodeURIComponent(name)}`)
+    expect(listed.body.items.filter((f: { name: string }) => f.name === name)).toHaveLength(1)
+  })
+
   it('a patch changes only the fields it names', async () => {
     const northUser = await disposableClient()
     const farm = await createFarm({ address: 'Keep me', notes: 'Keep these notes', clientIds: [northUser.id] })

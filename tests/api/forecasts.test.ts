@@ -181,7 +181,7 @@ describe('changes queue recomputes', () => {
   })
 
   it('a recompute that finds the same inputs stores nothing new unless asked by hand', async () => {
-    const { enqueueForecast } = await import('../../server/jobs/enqueue.ts')
+    const { enqueueForecast } = await import('../../server/queue/enqueue.ts')
     const store = createStore(server.database.db)
     const { job } = await enqueueForecast(store, { fieldId: northField.id, farmId: northField.farmId, reason: 'nightly' })
     await jobs.runner!.idle()

@@ -1,6 +1,7 @@
 // All repositories over one Drizzle handle, and a Store that runs work in a transaction.
 import { sql } from 'drizzle-orm'
 import type { Database, DbOrTx } from '../index.ts'
+import { isDuplicateKey, UniqueViolation } from './util.ts'
 import { businessRepository } from './business.ts'
 import { farmsRepository } from './farms.ts'
 import { fieldsRepository } from './fields.ts'
@@ -45,11 +46,15 @@ export function createRepositories(db: DbOrTx) {
   }
 }
 export type Repositories = ReturnType<typeof createRepositories>
+export { UniqueViolation }
 
 /** What services receive: repositories, transactions and a liveness check. */
 export interface Store {
   repos: Repositories
-  /** Runs `work` in one transaction: everything it writes is kept, or nothing. */
+  /**
+   * Runs `work` in one transaction: everything it writes is kept, or nothing. A write
+   * that would repeat a unique key fails the transaction with a UniqueViolation.
+   */
   transaction<T>(work: (repos: Repositories) => Promise<T>): Promise<T>
   ping(): Promise<void>
 }
@@ -57,7 +62,10 @@ export interface Store {
 export function createStore(db: Database): Store {
   return {
     repos: createRepositories(db),
-    transaction: (work) => db.transaction((tx) => work(createRepositories(tx))),
+    transaction: (work) =>
+      db.transaction((tx) => work(createRepositories(tx))).catch((error: unknown) => {
+        throw isDuplicateKey(error) ? new UniqueViolation(error) : error
+      }),
     ping: async () => {
       await db.execute(sql`SELECT 1`)
     },

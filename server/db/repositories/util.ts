@@ -11,6 +11,18 @@ export function likeEscaped(column: MySqlColumn, pattern: string): SQL {
   return sql`${column} LIKE ${pattern} ESCAPE '\\\\'`
 }
 
+/**
+ * A write that would repeat a unique key (a farm name, a machine name, an e-mail): what
+ * a transaction throws instead of the database's own duplicate-key error, so services
+ * need not know the database's error codes.
+ */
+export class UniqueViolation extends Error {
+  constructor(cause: unknown) {
+    super('A unique key would be repeated.', { cause })
+    this.name = 'UniqueViolation'
+  }
+}
+
 /** True for MariaDB's duplicate-key error, also when Drizzle wraps it. */
 export function isDuplicateKey(error: unknown): boolean {
   let e: unknown = error

@@ -1,5 +1,10 @@
 /**
  * Reading an orbit file whatever its format: the format is told from the content.
+ *
+ * Sources: the formats' own documents, named in tle.ts (Spacetrack Report #3; AIAA
+ * 2006-6753), omm.ts (CCSDS 502.0-B-3) and yuma.ts (the US Coast Guard Navigation
+ * Center's YUMA layout; IS-GPS-200). Telling them apart by their first characters ('{'
+ * or '[' JSON, '<' XML), a YUMA header or 'ID:' line, else TLE, is common practice.
  */
 import type { GnssSystem } from '../systems'
 import { parseOmmJson, parseOmmXml } from './omm'

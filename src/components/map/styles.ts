@@ -7,7 +7,7 @@ import type { FeatureLike } from 'ol/Feature'
 import { Circle as CircleStyle, Fill, RegularShape, Stroke, Style, Text } from 'ol/style'
 import type { UnitSystem } from '@shared/schemas'
 import type { ObstructionKind } from '@shared/precision'
-import { formatArea, formatHeight } from '@/composables/units'
+import { formatAreaBoth, formatHeight } from '@/lib/units'
 
 export const obstructionColours: Record<ObstructionKind, { stroke: string; fill: string; label: string }> = {
   deciduous: { stroke: '#7a5b1e', fill: 'rgba(122, 91, 30, 0.35)', label: 'Deciduous trees' },
@@ -43,7 +43,7 @@ export function fieldStyle(units: () => UnitSystem, selectedId: () => string | n
     // Labels only where the field is wide enough on screen to carry them.
     const showLabel = selected || widthPx(feature, resolution) >= 70
     const areaHa = feature.get('areaHa') as number | undefined
-    const text = areaHa !== undefined ? `${name}\n${formatArea(areaHa, units())}` : name
+    const text = areaHa !== undefined ? `${name}\n${formatAreaBoth(areaHa, units())}` : name
     return [
       new Style({
         fill: new Fill({ color: selected ? 'rgba(231, 215, 169, 0.55)' : 'rgba(43, 93, 74, 0.20)' }),

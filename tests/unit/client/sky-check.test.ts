@@ -5,7 +5,7 @@ import { describe, expect, it } from 'vitest'
 import { skyView } from '@shared/precision'
 import type { OrbitData } from '@shared/schemas/orbits'
 import { compassPoint, horizonCutPath, horizonPeak, markerPath, polarToXY, systemSymbols, trackPieces } from '@/components/sky/polar'
-import { formatArea, formatError, formatHeight } from '@/composables/units'
+import { formatAreaBoth, formatErrorM, formatHeight } from '@/lib/units'
 import { positionFromMessage, positionsFromData } from '@/views/fields/boundaryErrors'
 import { nominalFallback, nominalName, satellitesFromOrbitData } from '@/workers/orbitSatellites'
 
@@ -78,16 +78,16 @@ describe('polar sky view geometry', () => {
 
 describe('unit formats', () => {
   it('shows areas in both units, the user’s first', () => {
-    expect(formatArea(40.468564224, 'metric')).toBe('40.5 ha (100 ac)')
-    expect(formatArea(40.468564224, 'imperial')).toBe('100 ac (40.5 ha)')
-    expect(formatArea(0.5, 'metric')).toBe('0.5 ha (1.24 ac)')
+    expect(formatAreaBoth(40.468564224, 'metric')).toBe('40.5 ha (100 ac)')
+    expect(formatAreaBoth(40.468564224, 'imperial')).toBe('100 ac (40.5 ha)')
+    expect(formatAreaBoth(0.5, 'metric')).toBe('0.5 ha (1.24 ac)')
   })
   it('shows heights and errors in m/cm or ft/in', () => {
     expect(formatHeight(12, 'metric')).toBe('12 m')
     expect(formatHeight(3.048, 'imperial')).toBe('10 ft')
-    expect(formatError(0.0254, 'metric')).toBe('2.5 cm')
-    expect(formatError(0.0254, 'imperial')).toBe('1 in')
-    expect(formatError(2.5, 'metric')).toBe('2.5 m')
+    expect(formatErrorM(0.0254, 'metric')).toBe('2.5 cm')
+    expect(formatErrorM(0.0254, 'imperial')).toBe('1 in')
+    expect(formatErrorM(2.5, 'metric')).toBe('2.5 m')
   })
 })
 

@@ -5,7 +5,7 @@ import { forecastField, nominalConstellation } from '../../../shared/precision/i
 import { forecastWindow } from '../../../shared/schemas/forecast.ts'
 import { runEngineTask } from '../../../server/jobs/engineWorker.ts'
 import { msUntilLocalTime, nightlyKey } from '../../../server/jobs/index.ts'
-import { engineTask, inputsVersion, outagesInWindow, type VersionInputs } from '../../../server/jobs/inputs.ts'
+import { engineTask, inputsVersion, outagesInWindow, type VersionInputs } from '../../../server/forecast/inputs.ts'
 import { errorText, lockHolderGone, retryDelayMs } from '../../../server/jobs/runner.ts'
 import { hostname } from 'node:os'
 

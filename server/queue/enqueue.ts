@@ -1,10 +1,12 @@
-// Writing job rows: one transaction per enqueue, retried when two processes enqueue the
-// same key at once (MariaDB then reports a deadlock for one of them, which is safe to
-// retry). A process that runs jobs registers a wake-up so that new work starts at once
-// instead of at the next poll.
+// The queue's small interface: writing job rows, one transaction per enqueue, retried when
+// two processes enqueue the same key at once (MariaDB then reports a deadlock for one of
+// them, which is safe to retry). Services and jobs both enqueue through it; it knows
+// nothing of how jobs run. A process that runs jobs registers a wake-up (onEnqueued) so
+// that new work starts at once instead of at the next poll.
 import type { JobReason } from '../../shared/schemas/jobs.ts'
 import type { EnqueueMode, NewJob } from '../db/repositories/jobs.ts'
-import type { Repositories, Store } from '../db/repositories/index.ts'
+import type { Store } from '../db/repositories/index.ts'
+import { withDeadlockRetry } from '../db/retry.ts'
 import type { JobRow } from '../db/schema-planning.ts'
 
 export const forecastKey = (fieldId: number) => `forecast:field:${fieldId}`
@@ -22,31 +24,9 @@ export function wakeJobRunners(): void {
   for (const wake of wakeups) wake()
 }
 
-function isRetryable(error: unknown): boolean {
-  let e: unknown = error
-  for (let depth = 0; e && depth < 4; depth++) {
-    const code = (e as { code?: string }).code
-    if (code === 'ER_LOCK_DEADLOCK' || code === 'ER_LOCK_WAIT_TIMEOUT') return true
-    e = (e as { cause?: unknown }).cause
-  }
-  return false
-}
-
-/** Runs `work` in a transaction, retrying a few times on deadlock or lock-wait timeout. */
-export async function withDeadlockRetry<T>(store: Store, work: (repos: Repositories) => Promise<T>): Promise<T> {
-  for (let attempt = 1; ; attempt++) {
-    try {
-      return await store.transaction(work)
-    } catch (error) {
-      if (attempt >= 5 || !isRetryable(error)) throw error
-      await new Promise((r) => setTimeout(r, 10 * attempt + Math.random() * 40))
-    }
-  }
-}
-
 export async function enqueueJob(store: Store, job: NewJob, mode: EnqueueMode): Promise<{ job: JobRow; created: boolean }> {
   const result = await withDeadlockRetry(store, (repos) => repos.jobs.enqueue(job, mode))
-  if (result.created) for (const wake of wakeups) wake()
+  if (result.created) wakeJobRunners()
   return result
 }
 

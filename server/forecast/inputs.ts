@@ -25,17 +25,8 @@ export interface ObstructionInputs {
   leaflessTo: string | null
 }
 
-export interface WorkTypeInputs {
-  id: number
-  maxH95M: number
-  maxV95M: number | null
-  minSats: number
-  maxPdop: number
-  requiredShare: number
-  requireN1: boolean
-  /** sigma of the work type's own service level */
-  sigmaUereM: number
-}
+/** A work type's thresholds (the engine's WorkType) with its database id and the sigma of its own service level. */
+export type WorkTypeInputs = Omit<WorkType, 'id' | 'sigmaUereM'> & { id: number; sigmaUereM: number }
 
 export interface EngineSettings {
   stepMin: number

@@ -1,0 +1,68 @@
+// Everything a field's forecast depends on, read from the database: the field with its
+// service level's sigma, the farm's obstructions, the active work types and the orbit
+// data; with the engine settings of the stored forecasts. Used by the forecast jobs (which
+// add the window and the inputs version) and by the hour detail alike, so both compute
+// from the same inputs.
+import { forecastWindow, FORECAST_WINDOW_HOURS } from '../../shared/schemas/forecast.ts'
+import type { StoredForecastMeta } from '../db/repositories/forecasts.ts'
+import type { Repositories, Store } from '../db/repositories/index.ts'
+import { inputsVersion, type EngineSettings } from './inputs.ts'
+import { loadOrbitInputs } from './orbitInputs.ts'
+import { fieldCorrection, loadCorrectionInputs } from './correctionInputs.ts'
+
+/** Elevation mask of the stored forecasts (deg), the engine's default. */
+export const FORECAST_MASK_DEG = 10
+
+export function engineSettings(config: { forecastStepMin: number; forecastSampleCount: number }): EngineSettings {
+  return { stepMin: config.forecastStepMin, sampleCount: config.forecastSampleCount, maskDeg: FORECAST_MASK_DEG }
+}
+
+type ForecastField = NonNullable<Awaited<ReturnType<Repositories['forecasts']['fieldWithSigma']>>>
+
+/** The inputs besides the field itself (its farm's obstructions, the work types, the orbit data). */
+export async function inputsOfField(store: Store, field: ForecastField, window: { startMs: number; endMs: number }) {
+  const [obstructions, workTypes, orbits, corrections] = await Promise.all([
+    store.repos.forecasts.obstructionsOfFarm(field.farmId),
+    store.repos.forecasts.activeWorkTypes(),
+    loadOrbitInputs(store),
+    loadCorrectionInputs(store, window),
+  ])
+  // The correction part: the field's RTK link, baselines, closures, Kp blocks (correctionInputs.ts).
+  const correction = fieldCorrection(field, workTypes, corrections)
+  return { field, obstructions, workTypes, orbits, correction }
+}
+
+/** A field's forecast inputs for the window at `nowMs`, with their version; null when the field is gone. */
+export async function forecastInputsOf(store: Store, fieldId: number, settings: EngineSettings, nowMs: number) {
+  const field = await store.repos.forecasts.fieldWithSigma(fieldId)
+  if (!field) return null
+  const window = forecastWindow(nowMs, FORECAST_WINDOW_HOURS)
+  const inputs = await inputsOfField(store, field, window)
+  const version = inputsVersion({
+    field,
+    obstructions: inputs.obstructions,
+    orbitVersion: inputs.orbits.version,
+    outages: inputs.orbits.outages,
+    workTypes: inputs.workTypes,
+    windowStartMs: window.startMs,
+    windowHours: window.hours,
+    settings,
+    correction: inputs.correction.version,
+  })
+  return { ...inputs, window, version }
+}
+
+/** Whether a field's stored week is complete, of this window and all of this inputs version. */
+export function storedWeekIsCurrent(
+  meta: StoredForecastMeta | undefined,
+  window: { startMs: number; hours: number },
+  version: string,
+): boolean {
+  return (
+    meta !== undefined &&
+    meta.hours === window.hours &&
+    meta.firstHour?.getTime() === window.startMs &&
+    meta.minVersion === version &&
+    meta.maxVersion === version
+  )
+}
