@@ -18,13 +18,12 @@ import type {
 } from '../../shared/schemas/corrections.ts'
 import { assertFarmVisible, visibleFarmIds } from '../auth/access.ts'
 import type { Repositories } from '../db/repositories/index.ts'
-import { isDuplicateKey } from '../db/repositories/util.ts'
 import type { BaseStationRow, CorrectionNetworkRow } from '../db/schema-planning.ts'
 import { emit } from '../events.ts'
 import { badRequest, conflict, notFound } from '../http/errors.ts'
 import { boundaryProblems } from '../imports/geometry.ts'
 import { fieldLink, sourcesOf } from '../forecast/correctionInputs.ts'
-import type { ServiceContext } from './context.ts'
+import { rethrowUniqueAsConflict, type ServiceContext } from './context.ts'
 
 const BASE_TAKEN = 'A base station with this name already exists.'
 const NETWORK_TAKEN = 'A correction network with this name already exists.'
@@ -57,10 +56,7 @@ function checkCoverage(coverage: NetworkInput['coverage'] | undefined): void {
 const changed = () => void emit('planning.changed', { serviceLevelIds: 'all' })
 
 function dup(message: string) {
-  return (error: unknown): never => {
-    if (isDuplicateKey(error)) throw conflict(message, { name: message })
-    throw error
-  }
+  return (error: unknown): never => rethrowUniqueAsConflict(error, message, 'name')
 }
 
 const PROBLEM_TEXT = {
