@@ -7,6 +7,7 @@ import { loadConfig } from '../server/config.ts'
 import { openDatabase, type Database } from '../server/db/index.ts'
 import { createStore } from '../server/db/repositories/index.ts'
 import { seedOperators } from './crew.ts'
+import { seedCorrections } from './corrections.ts'
 import { seedFields } from './fields.ts'
 import { seedPasses } from './passes.ts'
 import { seedPlanning } from './planning.ts'
@@ -29,6 +30,8 @@ export async function seedDemo(db: Database): Promise<SeedResult> {
   await seedFields(db)
   // The hill-country farm with its elevation model (written with the first seed only).
   if (result.seeded) await seedHillFarm(db)
+  // RTK base stations and the correction network the fields reach.
+  await seedCorrections(db)
   // Last: demo passes in the coming days on those fields (only while none is upcoming).
   await seedPasses(db)
   return result

@@ -17,7 +17,16 @@ const COMMON_PRACTICE = 'Demo value: a common-practice approximation, not a publ
 export const demoServiceLevels = [
   { name: 'Standalone', sigmaUereM: 3.0, note: `Uncorrected single-frequency fix. ${COMMON_PRACTICE}` },
   { name: 'SBAS', sigmaUereM: 0.8, note: `Satellite-based augmentation (free wide-area corrections). ${COMMON_PRACTICE}` },
-  { name: 'RTK', sigmaUereM: 0.012, note: `Real-time kinematic from a base station or network. ${COMMON_PRACTICE}` },
+  {
+    name: 'RTK',
+    sigmaUereM: 0.012,
+    // "A few mm + 1 ppm" as receiver data sheets quote it; 30 km is a usual single-base limit.
+    ppmH: 1,
+    ppmV: 1,
+    maxBaselineKm: 30,
+    needsBase: true,
+    note: `Real-time kinematic from a base station or network: 12 mm + 1 mm per km of baseline, up to 30 km. ${COMMON_PRACTICE}`,
+  },
 ] as const
 
 export type DemoServiceLevelName = (typeof demoServiceLevels)[number]['name']
@@ -34,12 +43,14 @@ export const demoWorkTypes: Array<{
   requireN1: boolean
   rateHaPerH: number
   sortOrder: number
+  /** G3-or-worse storm hours (common practice: planting and strip-till can run with care, grade work cannot) */
+  stormAction: 'none' | 'tight' | 'closed'
 }> = [
-  { name: 'Planting', serviceLevel: 'RTK', maxH95M: 0.05, maxV95M: null, minSats: 6, maxPdop: 4, requiredShare: 0.95, requireN1: true, rateHaPerH: 6, sortOrder: 10 },
-  { name: 'Strip-till', serviceLevel: 'RTK', maxH95M: 0.05, maxV95M: null, minSats: 6, maxPdop: 4, requiredShare: 0.9, requireN1: true, rateHaPerH: 5, sortOrder: 20 },
-  { name: 'Spraying', serviceLevel: 'SBAS', maxH95M: 3, maxV95M: null, minSats: 5, maxPdop: 6, requiredShare: 0.8, requireN1: false, rateHaPerH: 25, sortOrder: 30 },
-  { name: 'Tile drainage', serviceLevel: 'RTK', maxH95M: 0.05, maxV95M: 0.04, minSats: 7, maxPdop: 3, requiredShare: 0.95, requireN1: true, rateHaPerH: 1.5, sortOrder: 40 },
-  { name: 'Land levelling', serviceLevel: 'RTK', maxH95M: 0.05, maxV95M: 0.035, minSats: 7, maxPdop: 3, requiredShare: 0.95, requireN1: true, rateHaPerH: 2, sortOrder: 50 },
+  { name: 'Planting', serviceLevel: 'RTK', maxH95M: 0.05, maxV95M: null, minSats: 6, maxPdop: 4, requiredShare: 0.95, requireN1: true, rateHaPerH: 6, sortOrder: 10, stormAction: 'tight' },
+  { name: 'Strip-till', serviceLevel: 'RTK', maxH95M: 0.05, maxV95M: null, minSats: 6, maxPdop: 4, requiredShare: 0.9, requireN1: true, rateHaPerH: 5, sortOrder: 20, stormAction: 'tight' },
+  { name: 'Spraying', serviceLevel: 'SBAS', maxH95M: 3, maxV95M: null, minSats: 5, maxPdop: 6, requiredShare: 0.8, requireN1: false, rateHaPerH: 25, sortOrder: 30, stormAction: 'none' },
+  { name: 'Tile drainage', serviceLevel: 'RTK', maxH95M: 0.05, maxV95M: 0.04, minSats: 7, maxPdop: 3, requiredShare: 0.95, requireN1: true, rateHaPerH: 1.5, sortOrder: 40, stormAction: 'closed' },
+  { name: 'Land levelling', serviceLevel: 'RTK', maxH95M: 0.05, maxV95M: 0.035, minSats: 7, maxPdop: 3, requiredShare: 0.95, requireN1: true, rateHaPerH: 2, sortOrder: 50, stormAction: 'closed' },
 ]
 
 /** Invented machines and crews; antenna heights of a tractor cab roof (about 3-4 m). */

@@ -24,6 +24,7 @@ import { obstructionRoutes } from './routes/obstructions.ts'
 import { orbitRoutes } from './routes/orbits.ts'
 import { outageRoutes } from './routes/outages.ts'
 import { orbitFeedRoutes } from './routes/orbitFeed.ts'
+import { correctionRoutes } from './routes/corrections.ts'
 import { passRoutes } from './routes/passes.ts'
 import { planRoutes } from './routes/plans.ts'
 import { windowRoutes } from './routes/windows.ts'
@@ -150,6 +151,7 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
   api.use(planRoutes(services))
   api.use('/crew', crewRoutes(services))
   api.use(taskDataRoutes(services))
+  api.use(correctionRoutes(services))
   api.use(apiNotFound)
   app.use('/api', api)
 

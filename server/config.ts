@@ -51,6 +51,7 @@ const envSchema = z.object({
   MAIL_FROM: optionalString,
   LOG_LEVEL: optionalString.pipe(z.enum(logLevels).optional()),
   ORBIT_FEED_URL: optionalString.pipe(z.url('ORBIT_FEED_URL must be an http(s) address').optional()),
+  KP_FEED_URL: optionalString.pipe(z.url('KP_FEED_URL must be an http(s) address').optional()),
   // One core is left to the API (and the database) by default: cores - 1, at least one.
   JOB_CONCURRENCY: intIn(1, 16, defaultJobConcurrency),
   JOBS_ENABLED: optionalString.pipe(z.enum(['true', 'false', '1', '0']).optional()),
@@ -82,6 +83,8 @@ export interface Config {
   logLevel: LogLevel
   /** Orbit feed address (OMM JSON, TLE or OMM XML); empty: the app's own local fake feed. */
   orbitFeedUrl: string
+  /** Kp forecast feed address (JSON, 3-hour blocks); empty: the app's own local fake feed. */
+  kpFeedUrl: string
   /** Forecast jobs that run at once in this process (each on its own worker thread). */
   jobConcurrency: number
   /** False: this process serves the API only and runs no jobs (another process does). */
@@ -148,6 +151,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     mailFrom: e.MAIL_FROM ?? 'Skyfurrow <plans@skyfurrow.test>',
     logLevel: e.LOG_LEVEL ?? (e.NODE_ENV === 'test' ? 'warn' : 'info'),
     orbitFeedUrl: e.ORBIT_FEED_URL ?? '',
+    kpFeedUrl: e.KP_FEED_URL ?? '',
     jobConcurrency: e.JOB_CONCURRENCY,
     jobsEnabled: e.JOBS_ENABLED === undefined || e.JOBS_ENABLED === 'true' || e.JOBS_ENABLED === '1',
     forecastStepMin: e.FORECAST_STEP_MIN,

@@ -33,13 +33,14 @@ import { createSgp4Options } from './propagator'
 import { geometryBox, localTerrainGrid } from '../terrain/grid.ts'
 import { readElevationModel, TerrainFileError } from '../terrain/readers.ts'
 import { terrainHorizonInto, TERRAIN_MAX_DISTANCE_M, type TerrainGrid } from '../../shared/precision/index'
+import { fieldBaseline, parseBaseArgs, pointBaseline } from './baselineArgs'
 
 const USAGE =
   'usage: npm run -s forecast -- --orbits FILE|nominal:gps|nominal:all [--orbits ...] --lat DEG --lon DEG ' +
   '[--height M] [--start ISO8601] [--hours N] [--step MIN] [--mask DEG] [--systems GPS,GLONASS,Galileo,BeiDou] ' +
   '[--weights none|elevation] [--field FILE.geojson --obstructions FILE.geojson --antenna-height M] ' +
   '[--terrain FILE.tif|FILE.asc [--terrain-reach M] [--refraction K]] ' +
-  '[--sigma M] [--samples N] [--format json|csv]'
+  '[--sigma M] [--samples N] [--base LAT,LON[,HEIGHT_M] [--ppm-h MM_PER_KM] [--ppm-v MM_PER_KM] [--max-baseline-km KM]] [--format json|csv]'
 
 class UsageError extends Error {}
 
@@ -209,6 +210,10 @@ async function main(argv: string[]): Promise<void> {
         samples: { type: 'string' },
         format: { type: 'string' },
         propagator: { type: 'string' },
+        base: { type: 'string' },
+        'ppm-h': { type: 'string' },
+        'ppm-v': { type: 'string' },
+        'max-baseline-km': { type: 'string' },
         help: { type: 'boolean' },
       },
     }).values
@@ -268,6 +273,12 @@ async function main(argv: string[]): Promise<void> {
   const terrainGeometry = field ? fieldGeometry(field) : { type: 'Point', coordinates: [lon, lat] }
   const terrainGrid = terrainFile ? await loadTerrain(terrainFile, terrainGeometry as { coordinates: unknown }, reachM) : null
   const terrainOptions = { maxDistanceM: reachM, refractionK }
+  let baseArgs
+  try {
+    baseArgs = parseBaseArgs(values as Parameters<typeof parseBaseArgs>[0])
+  } catch (e) {
+    throw new UsageError((e as Error).message)
+  }
   const satellites = loadOrbits(orbits, fileSystem)
   const epochCount = Math.floor((hours * 60) / stepMin) + 1
   let propagation
@@ -292,16 +303,21 @@ async function main(argv: string[]): Promise<void> {
         point: { latDeg: lat, lonDeg: lon, heightM },
         satellites, startMs, hours, stepMin, maskDeg, systems, weights, obstructions, antennaHeightM, propagation, terrain,
       })
-      const out = terrainHorizon ? { epochs, terrainHorizon } : { epochs }
+      const extra = baseArgs ? pointBaseline(baseArgs, { latDeg: lat, lonDeg: lon }) : {}
+      const out = terrainHorizon ? { ...extra, epochs, terrainHorizon } : { ...extra, epochs }
       process.stdout.write(format === 'csv' ? pointCsv(epochs) : `${JSON.stringify(out, null, 2)}\n`)
     } else {
+      const geometry = fieldGeometry(field)
+      const link = baseArgs ? fieldBaseline(baseArgs, geometry, DEMO_WORK_TYPES) : null
       const result = forecastField({
-        field: fieldGeometry(field),
+        field: geometry,
         obstructions, antennaHeightM, satellites, startMs, hours, stepMin, maskDeg, systems, weights, heightM,
-        sigmaUereM, workTypes: DEMO_WORK_TYPES, sampleCount, propagation,
+        sigmaUereM, workTypes: link?.workTypes ?? DEMO_WORK_TYPES, sampleCount, propagation,
         terrain: terrainGrid ? { grid: terrainGrid, options: terrainOptions } : null,
+        baselineHM: link?.baselineHM, baselineVM: link?.baselineVM,
       })
-      process.stdout.write(format === 'csv' ? fieldCsv(result.hours) : `${JSON.stringify({ hours: result.hours }, null, 2)}\n`)
+      const extra = link ? { baselineKm: link.baselineKm, farthestKm: link.farthestKm } : {}
+      process.stdout.write(format === 'csv' ? fieldCsv(result.hours) : `${JSON.stringify({ ...extra, hours: result.hours }, null, 2)}\n`)
     }
   } catch (e) {
     // Bad geometry or settings found by the engine are argument errors too.

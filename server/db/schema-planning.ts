@@ -40,6 +40,13 @@ export const serviceLevels = mysqlTable(
     name: varchar('name', { length: 80 }).notNull(),
     /** sigma of the user equivalent range error, metres. */
     sigmaUereM: double('sigma_uere_m').notNull(),
+    /** Error model with a baseline (shared/precision/errorModel.ts): mm per km of baseline, horizontal and vertical. */
+    ppmH: double('ppm_h').notNull().default(0),
+    ppmV: double('ppm_v').notNull().default(0),
+    /** Longest usable baseline (km); null: no limit. */
+    maxBaselineKm: double('max_baseline_km'),
+    /** The service needs a base station or network (RTK): fields out of reach are Closed for it. */
+    needsBase: boolean('needs_base').notNull().default(false),
     note: varchar('note', { length: 500 }).notNull().default(''),
     createdAt: createdAt(),
     updatedAt: updatedAt(),
@@ -65,6 +72,8 @@ export const workTypes = mysqlTable(
     requiredShare: double('required_share').notNull(),
     requireN1: boolean('require_n1').notNull(),
     rateHaPerH: double('rate_ha_per_h').notNull(),
+    /** What an hour of a G3-or-worse geomagnetic storm does to this work: none, tight or closed. */
+    stormAction: varchar('storm_action', { length: 8, enum: ['none', 'tight', 'closed'] }).notNull().default('none'),
     sortOrder: smallint('sort_order').notNull().default(0),
     active: boolean('active').notNull().default(true),
     createdAt: createdAt(),
@@ -93,6 +102,58 @@ export const machines = mysqlTable(
   (t) => [uniqueIndex('machines_name_unique').on(t.name)],
 )
 
+/** The contractor's own RTK base stations. */
+export const baseStations = mysqlTable(
+  'base_stations',
+  {
+    id: int('id').autoincrement().primaryKey(),
+    name: varchar('name', { length: 120 }).notNull(),
+    latDeg: double('lat_deg').notNull(),
+    lonDeg: double('lon_deg').notNull(),
+    antennaHeightM: double('antenna_height_m').notNull().default(0),
+    radioRangeKm: double('radio_range_km').notNull(),
+    note: varchar('note', { length: 1000 }).notNull().default(''),
+    createdAt: createdAt(),
+    updatedAt: updatedAt(),
+  },
+  (t) => [uniqueIndex('base_stations_name_unique').on(t.name)],
+)
+
+/** Correction networks: a coverage polygon and/or mount points (JSON). */
+export const correctionNetworks = mysqlTable(
+  'correction_networks',
+  {
+    id: int('id').autoincrement().primaryKey(),
+    name: varchar('name', { length: 120 }).notNull(),
+    /** GeoJSON Polygon (one ring) or null. */
+    coverage: mediumtext('coverage'),
+    /** JSON array of { name, latDeg, lonDeg }. */
+    mountPointsJson: text('mount_points_json').notNull(),
+    note: varchar('note', { length: 1000 }).notNull().default(''),
+    createdAt: createdAt(),
+    updatedAt: updatedAt(),
+  },
+  (t) => [uniqueIndex('correction_networks_name_unique').on(t.name)],
+)
+
+/** Planetary K index blocks of the space-weather feed (3 hours each, UTC). */
+export const kpBlocks = mysqlTable('kp_blocks', {
+  blockStart: at('block_start').primaryKey(),
+  blockEnd: at('block_end').notNull(),
+  kp: double('kp').notNull(),
+  observed: boolean('observed').notNull().default(false),
+  fetchedAt: at('fetched_at').notNull().$defaultFn(now),
+})
+
+/** The space-weather feed's last fetch (a single row, id 1). */
+export const spaceWeatherFeed = mysqlTable('space_weather_feed', {
+  id: int('id').primaryKey(),
+  url: varchar('url', { length: 1000 }).notNull().default(''),
+  lastAttemptAt: at('last_attempt_at'),
+  lastOkAt: at('last_ok_at'),
+  lastError: varchar('last_error', { length: 1000 }),
+})
+
 export const fields = mysqlTable(
   'fields',
   {
@@ -107,6 +168,9 @@ export const fields = mysqlTable(
       .notNull()
       .references(() => serviceLevels.id),
     antennaHeightM: double('antenna_height_m').notNull(),
+    /** The field's chosen RTK base or correction network; both null: the nearest reachable one. */
+    baseStationId: int('base_station_id').references(() => baseStations.id, { onDelete: 'set null' }),
+    networkId: int('network_id').references(() => correctionNetworks.id, { onDelete: 'set null' }),
     /** GeoJSON Polygon or MultiPolygon geometry (lon/lat, WGS-84). */
     boundary: mediumtext('boundary').notNull(),
     areaHa: double('area_ha').notNull(),
@@ -435,6 +499,9 @@ export const planOptOuts = mysqlTable(
   (t) => [primaryKey({ columns: [t.farmId, t.email] })],
 )
 
+export type BaseStationRow = typeof baseStations.$inferSelect
+export type CorrectionNetworkRow = typeof correctionNetworks.$inferSelect
+export type KpBlockRow = typeof kpBlocks.$inferSelect
 export type ServiceLevelRow = typeof serviceLevels.$inferSelect
 export type WorkTypeRow = typeof workTypes.$inferSelect
 export type MachineRow = typeof machines.$inferSelect

@@ -9,6 +9,7 @@ import type { Repositories, Store } from '../db/repositories/index.ts'
 import { inputsVersion, type EngineSettings } from './inputs.ts'
 import { loadOrbitInputs } from './orbitInputs.ts'
 import { terrainOfField, terrainVersionOf } from '../terrain/store.ts'
+import { fieldCorrection, loadCorrectionInputs } from './correctionInputs.ts'
 
 /** Elevation mask of the stored forecasts (deg), the engine's default. */
 export const FORECAST_MASK_DEG = 10
@@ -19,23 +20,29 @@ export function engineSettings(config: { forecastStepMin: number; forecastSample
 
 type ForecastField = NonNullable<Awaited<ReturnType<Repositories['forecasts']['fieldWithSigma']>>>
 
-/** The inputs besides the field itself (its farm's obstructions, the work types, the orbit data, the elevation model covering it). */
-export async function inputsOfField(store: Store, field: ForecastField) {
-  const [obstructions, workTypes, orbits, terrain] = await Promise.all([
+/**
+ * The inputs besides the field itself (its farm's obstructions, the work types, the orbit
+ * data, the elevation model covering it, and the correction part over `window`).
+ */
+export async function inputsOfField(store: Store, field: ForecastField, window: { startMs: number; endMs: number }) {
+  const [obstructions, workTypes, orbits, terrain, corrections] = await Promise.all([
     store.repos.forecasts.obstructionsOfFarm(field.farmId),
     store.repos.forecasts.activeWorkTypes(),
     loadOrbitInputs(store),
     terrainOfField(store.repos, field),
+    loadCorrectionInputs(store, window),
   ])
-  return { field, obstructions, workTypes, orbits, terrain }
+  // The correction part: the field's RTK link, baselines, closures, Kp blocks (correctionInputs.ts).
+  const correction = fieldCorrection(field, workTypes, corrections)
+  return { field, obstructions, workTypes, orbits, terrain, correction }
 }
 
 /** A field's forecast inputs for the window at `nowMs`, with their version; null when the field is gone. */
 export async function forecastInputsOf(store: Store, fieldId: number, settings: EngineSettings, nowMs: number) {
   const field = await store.repos.forecasts.fieldWithSigma(fieldId)
   if (!field) return null
-  const inputs = await inputsOfField(store, field)
   const window = forecastWindow(nowMs, FORECAST_WINDOW_HOURS)
+  const inputs = await inputsOfField(store, field, window)
   const version = inputsVersion({
     field,
     obstructions: inputs.obstructions,
@@ -46,6 +53,7 @@ export async function forecastInputsOf(store: Store, fieldId: number, settings: 
     windowHours: window.hours,
     settings,
     terrain: terrainVersionOf(inputs.terrain),
+    correction: inputs.correction.version,
   })
   return { ...inputs, window, version }
 }

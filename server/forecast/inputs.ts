@@ -48,6 +48,8 @@ export interface VersionInputs {
   settings: EngineSettings
   /** the elevation model covering the field (server/terrain/store.ts terrainVersionOf); absent or null without one */
   terrain?: string | null
+  /** the correction part (correctionInputs.ts): link, baselines, Kp blocks, storm settings */
+  correction?: string
 }
 
 /** Outages that overlap [startMs, endMs). */
@@ -81,6 +83,7 @@ export function inputsVersion(v: VersionInputs): string {
     s: [v.settings.stepMin, v.settings.sampleCount, v.settings.maskDeg],
     // Only with an elevation model, so that the versions of fields without one stay as they were.
     ...(v.terrain ? { t: v.terrain } : {}),
+    ...(v.correction === undefined ? {} : { c: v.correction }),
   }
   return createHash('sha256').update(JSON.stringify(canonical)).digest('hex')
 }

@@ -42,8 +42,11 @@ export function toStoredHour(
     fieldId,
     hourStart: new Date(h.startMs),
     ...hourFiguresOf(h),
-    workJson: JSON.stringify(Object.fromEntries(h.workTypes.map((w) => [w.id, { share: w.share, shareN1: w.shareN1, state: w.state }]))),
-    extraJson: JSON.stringify({ samples: h.samples }),
+    workJson: JSON.stringify(
+      Object.fromEntries(h.workTypes.map((w) => [w.id, { share: w.share, shareN1: w.shareN1, state: w.state, ...(w.reason ? { reason: w.reason } : {}) }])),
+    ),
+    // The hour's space weather (correction.ts) rides in the extra column: absent when no Kp data was given.
+    extraJson: JSON.stringify({ samples: h.samples, ...(h.spaceWeather !== undefined ? { spaceWeather: h.spaceWeather } : {}) }),
     orbitSummary: meta.orbitSummary.slice(0, 255),
     inputsVersion: meta.inputsVersion,
     jobId: meta.jobId,
@@ -59,5 +62,11 @@ export function toForecastHour(row: ForecastHourRow): ForecastHour {
   } catch {
     workTypes = {}
   }
-  return { time: row.hourStart.toISOString(), ...pickHourFigures(row), workTypes }
+  let spaceWeather: ForecastHour['spaceWeather']
+  try {
+    spaceWeather = row.extraJson ? (JSON.parse(row.extraJson) as Pick<ForecastHour, 'spaceWeather'>).spaceWeather : undefined
+  } catch {
+    spaceWeather = undefined
+  }
+  return { time: row.hourStart.toISOString(), ...pickHourFigures(row), workTypes, ...(spaceWeather !== undefined ? { spaceWeather } : {}) }
 }

@@ -11,6 +11,9 @@ import { enqueueForecast, enqueueJob } from '../queue/enqueue.ts'
 import { feedUrlOf, fetchOrbitFeed } from '../services/orbitFeed.ts'
 import { FINISHED_JOB_RETENTION_DAYS } from '../queue/retention.ts'
 import { boundaryGeometry, terrainGridFor } from '../terrain/store.ts'
+import { fetchKpFeed, kpFeedUrlOf } from '../services/spaceWeather.ts'
+import { withCorrection } from '../forecast/correctionInputs.ts'
+import type { Store } from '../db/repositories/index.ts'
 import type { JobContext, JobHandler, JobOutcome } from './runner.ts'
 
 export const forecastHandler: JobHandler = async (ctx: JobContext): Promise<JobOutcome> => {
@@ -27,17 +30,20 @@ export const forecastHandler: JobHandler = async (ctx: JobContext): Promise<JobO
       return { summary: 'Already up to date; nothing recomputed.', inputsVersion: version, data: { skipped: true } }
     }
   }
-  const task = engineTask({
-    field,
-    obstructions: inputs.obstructions,
-    satellites: inputs.orbits.satellites,
-    outages: inputs.orbits.outages,
-    workTypes: inputs.workTypes,
-    windowStartMs: window.startMs,
-    windowHours: window.hours,
-    settings,
-    terrain: inputs.terrain ? await terrainGridFor(store.repos, inputs.terrain, boundaryGeometry(field.boundary)) : null,
-  })
+  const task = withCorrection(
+    engineTask({
+      field,
+      obstructions: inputs.obstructions,
+      satellites: inputs.orbits.satellites,
+      outages: inputs.orbits.outages,
+      workTypes: inputs.workTypes,
+      windowStartMs: window.startMs,
+      windowHours: window.hours,
+      settings,
+      terrain: inputs.terrain ? await terrainGridFor(store.repos, inputs.terrain, boundaryGeometry(field.boundary)) : null,
+    }),
+    inputs.correction,
+  )
   const result = await ctx.pool.run(task, (f) => ctx.progress(0.05 + 0.9 * f))
   if (ctx.signal.aborted) throw ctx.signal.reason
   if (result.hours.length !== window.hours) {
@@ -75,6 +81,13 @@ export const orbitFeedHandler: JobHandler = async (ctx) => {
   return { summary: result.message, data: { ...result } }
 }
 
+/** Fetches the Kp forecast feed (the app's local fake feed by default); the runner retries a failure. */
+export const spaceWeatherHandler: JobHandler = async (ctx) => {
+  const result = await fetchKpFeed(ctx.store, kpFeedUrlOf(ctx.config))
+  if (!result.ok) throw new Error(result.message)
+  return { summary: result.message, data: { ...result } }
+}
+
 /** The date (UTC) a daily job belongs to, for its dedupe key. */
 const dayOf = (ms: number) => new Date(ms).toISOString().slice(0, 10)
 
@@ -86,6 +99,7 @@ export const nightlyRefreshHandler: JobHandler = async (ctx) => {
   const { store } = ctx
   const window = forecastWindow(Date.now())
   await enqueueJob(store, { kind: 'orbit-feed', dedupeKey: `orbit-feed:${dayOf(Date.now())}`, payload: { reason: 'nightly' }, maxAttempts: 4 }, 'once')
+  await enqueueSpaceWeather(store)
   const pruned = await store.transaction((repos) => repos.forecasts.pruneBefore(new Date(window.startMs)))
   const prunedJobs = await store.repos.jobs.pruneFinished(new Date(Date.now() - FINISHED_JOB_RETENTION_DAYS * 86_400_000))
   const fieldList = await store.repos.forecasts.fieldIds()
@@ -101,6 +115,11 @@ export const nightlyRefreshHandler: JobHandler = async (ctx) => {
   }
 }
 
+/** Queues today's Kp feed fetch once (the nightly refresh and the start-up). */
+export function enqueueSpaceWeather(store: Store) {
+  return enqueueJob(store, { kind: 'space-weather', dedupeKey: `space-weather:${dayOf(Date.now())}`, payload: { reason: 'nightly' }, maxAttempts: 4 }, 'once')
+}
+
 export function defaultHandlers(extra: Record<string, JobHandler> = {}): Record<string, JobHandler> {
-  return { forecast: forecastHandler, 'nightly-refresh': nightlyRefreshHandler, 'orbit-feed': orbitFeedHandler, ...extra }
+  return { forecast: forecastHandler, 'nightly-refresh': nightlyRefreshHandler, 'orbit-feed': orbitFeedHandler, 'space-weather': spaceWeatherHandler, ...extra }
 }

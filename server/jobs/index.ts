@@ -11,7 +11,8 @@ import type { Logger } from '../logger.ts'
 import { enqueueForecast, enqueueJob } from '../queue/enqueue.ts'
 import { EnginePool } from './enginePool.ts'
 import { engineSettings, storedWeekIsCurrent } from '../forecast/fieldInputs.ts'
-import { defaultHandlers } from './handlers.ts'
+import { defaultHandlers, enqueueSpaceWeather } from './handlers.ts'
+import { fieldCorrection, loadCorrectionInputs } from '../forecast/correctionInputs.ts'
 import { inputsVersion } from '../forecast/inputs.ts'
 import { loadOrbitInputs } from '../forecast/orbitInputs.ts'
 import { JobRunner, type JobHandler } from './runner.ts'
@@ -35,7 +36,11 @@ export async function stalenessSweep(store: Store, config: Config, nowMs = Date.
   const window = forecastWindow(nowMs, FORECAST_WINDOW_HOURS)
   const farmIds = [...new Set((await store.repos.forecasts.fieldIds()).map((f) => f.farmId))]
   if (farmIds.length === 0) return { checked: 0, queued: 0 }
-  const [workTypes, orbits] = await Promise.all([store.repos.forecasts.activeWorkTypes(), loadOrbitInputs(store)])
+  const [workTypes, orbits, corrections] = await Promise.all([
+    store.repos.forecasts.activeWorkTypes(),
+    loadOrbitInputs(store),
+    loadCorrectionInputs(store, window),
+  ])
   let checked = 0
   let queued = 0
   // Farm by farm, so that memory does not grow with the number of fields (boundaries can be large).
@@ -57,6 +62,7 @@ export async function stalenessSweep(store: Store, config: Config, nowMs = Date.
         windowHours: window.hours,
         settings,
         terrain: terrainVersionOf(await terrainOfField(store.repos, field)),
+        correction: fieldCorrection(field, workTypes, corrections).version,
       })
       if (storedWeekIsCurrent(meta.get(field.id), window, version)) continue
       const { created } = await enqueueForecast(store, { fieldId: field.id, farmId: field.farmId, reason: 'start-up' }, 'reuse-pending')
@@ -108,6 +114,8 @@ export async function startJobs(deps: {
   let sweep = { checked: 0, queued: 0 }
   if (deps.sweep !== false) {
     try {
+      // Today's Kp forecast before the sweep, so the first forecasts carry it.
+      await enqueueSpaceWeather(store)
       sweep = await stalenessSweep(store, config)
       if (sweep.queued) logger.info(`start-up check: ${sweep.queued} of ${sweep.checked} field forecasts queued for a recompute`)
     } catch (error) {

@@ -54,6 +54,8 @@ export interface PlanContent {
   fields: PlanFieldHours[]
   atRisk: PlanRiskLine[]
   forecastNote: string | null
+  /** geomagnetic storm spans (G3 or worse) and a note when the Kp feed is stale or short */
+  spaceWeather?: { storms: string[]; note: string | null }
 }
 
 /** The placeholder characters; user text never keeps them. */
@@ -154,6 +156,15 @@ export function planHtml(c: PlanContent): string {
     out.push('</table>')
   }
 
+  if (c.spaceWeather && (c.spaceWeather.storms.length || c.spaceWeather.note)) {
+    out.push(`<h2 style="${css.h2}">Space weather</h2>`)
+    if (c.spaceWeather.storms.length) {
+      out.push(`<p style="margin:0 0 8px">A geomagnetic storm is forecast. Strong storms can stop RTK fixes for hours; RTK work in these hours may be Tight or Closed.</p>
+<table role="presentation" style="${css.table}">${c.spaceWeather.storms.map((s) => `<tr><td style="${css.td}"><strong>Storm</strong> ${h(s)}</td></tr>`).join('')}</table>`)
+    }
+    if (c.spaceWeather.note) out.push(`<p style="${css.muted}">${h(c.spaceWeather.note)}</p>`)
+  }
+
   out.push(`<h2 style="${css.h2}">Good hours for precision work</h2>
 <p style="margin:0 0 8px">Hours when the forecast is Clear: the satellites give the precision each kind of work needs on the field, with a margin.</p>`)
   if (c.forecastNote) out.push(`<p style="${css.muted}">${h(c.forecastNote)}</p>`)
@@ -203,6 +214,12 @@ export function planText(c: PlanContent): string {
     for (const r of c.atRisk) {
       out.push(`  ${clean(r.when)}  ${clean(r.workType)}, ${clean(r.field)}: ${clean(r.reason)}${r.suggestion ? ` Better start: ${clean(r.suggestion)}` : ''}`)
     }
+  }
+  if (c.spaceWeather && (c.spaceWeather.storms.length || c.spaceWeather.note)) {
+    out.push('', 'SPACE WEATHER')
+    if (c.spaceWeather.storms.length) out.push('A geomagnetic storm is forecast; RTK work in these hours may be Tight or Closed.')
+    for (const s of c.spaceWeather.storms) out.push(`  STORM ${clean(s)}`)
+    if (c.spaceWeather.note) out.push(clean(c.spaceWeather.note))
   }
   out.push('', 'GOOD HOURS FOR PRECISION WORK (Clear)')
   if (c.forecastNote) out.push(clean(c.forecastNote))

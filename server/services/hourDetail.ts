@@ -4,7 +4,7 @@
 // The engine runs with the same inputs as the forecast jobs: the active orbit data and
 // outages (orbitData service), the farm's obstructions, the field's antenna height and
 // service level, the active work types, and the jobs' step, sample count and mask.
-import { forecastField, skyView } from '../../shared/precision/index.ts'
+import { errorBudget, forecastField, hourSpaceWeather, skyView } from '../../shared/precision/index.ts'
 import { HOUR_MS, floorHour } from '../../shared/planning/index.ts'
 import type { SessionUser } from '../../shared/schemas/auth.ts'
 import type { HourDetail, HourDetailPoint, StoredHourFigures } from '../../shared/schemas/passes.ts'
@@ -28,7 +28,7 @@ function storedFigures(row: ForecastHourRow, names: Map<number, string>): Stored
     ...figures,
     workTypes: Object.entries(workTypes)
       .filter(([id]) => names.has(Number(id)))
-      .map(([id, v]) => ({ workTypeId: Number(id), workTypeName: names.get(Number(id))!, share: v.share, shareN1: v.shareN1, state: v.state })),
+      .map(([id, v]) => ({ workTypeId: Number(id), workTypeName: names.get(Number(id))!, share: v.share, shareN1: v.shareN1, state: v.state, ...(v.reason ? { reason: v.reason } : {}) })),
     orbitSummary: row.orbitSummary,
     computedAt: row.computedAt.toISOString(),
   }
@@ -56,8 +56,8 @@ export function createHourDetailService(ctx: ServiceContext) {
         throw badRequest('Ask for an hour within 60 days of today.', { hour: 'Choose an hour within 60 days of today.' })
       }
       const farm = await repos.farms.findById(field.farmId)
-      const [{ obstructions: obstructionRows, workTypes: workTypeRows, orbits, terrain: terrainRow }, storedRows] = await Promise.all([
-        inputsOfField(store, field),
+      const [{ obstructions: obstructionRows, workTypes: workTypeRows, orbits, terrain: terrainRow, correction }, storedRows] = await Promise.all([
+        inputsOfField(store, field, { startMs: hourStart, endMs: hourStart + HOUR_MS }),
         repos.forecasts.hours([field.id], new Date(hourStart), new Date(hourStart + HOUR_MS)),
       ])
       const names = new Map(workTypeRows.map((w) => [w.id, w.name]))
@@ -81,7 +81,10 @@ export function createHourDetailService(ctx: ServiceContext) {
         stepMin: settings.stepMin,
         sampleCount: settings.sampleCount,
         sigmaUereM: field.sigmaUereM,
-        workTypes: engineWorkTypes(workTypeRows),
+        baselineHM: correction.baselineHM,
+        baselineVM: correction.baselineVM,
+        kpBlocks: correction.kpBlocks,
+        workTypes: engineWorkTypes(workTypeRows).map((w) => ({ ...w, ...correction.workTypes.get(w.id) })),
         detailHourMs: hourStart,
       })
       const detailPoints = result.detail?.points ?? []
@@ -105,12 +108,29 @@ export function createHourDetailService(ctx: ServiceContext) {
       const worst = worstPointIndex(points)
       // The sky at the middle of the hour, with the satellites' tracks over the hour around it.
       const sky = skyView({ ...common, point: { latDeg: points[worst].latDeg, lonDeg: points[worst].lonDeg }, atMs: hourStart + HOUR_MS / 2 })
+      const stored = storedRows[0] ? storedFigures(storedRows[0], names) : null
+      // The error budget at the field's worst: geometry (DOP x sigma), the baseline part, the storm flag.
+      const hdop = stored ? stored.hdopMax : points[worst].hdopMax
+      const vdop = stored ? stored.vdopMax : points[worst].vdopMax
+      const budget = errorBudget({ hdop, vdop }, field.sigmaUereM, correction)
+      const link = correction.link
       return {
         fieldId: field.id,
         fieldName: field.name,
+        errorBudget: {
+          ...budget,
+          hdop,
+          vdop,
+          sigmaUereM: field.sigmaUereM,
+          link: link ? { kind: link.kind, name: link.name, baselineKm: link.baselineKm, farthestKm: link.farthestKm, reachable: link.reachable } : null,
+          spaceWeather: hourSpaceWeather(correction.kpBlocks, hourStart),
+          closedReasons: Object.fromEntries(
+            [...correction.workTypes.entries()].filter(([, e]) => e.closedReason).map(([id, e]) => [id, e.closedReason!]),
+          ),
+        },
         timeZone: farm?.timeZone ?? 'UTC',
         hourStart: new Date(hourStart).toISOString(),
-        stored: storedRows[0] ? storedFigures(storedRows[0], names) : null,
+        stored,
         computed: {
           orbitSummary: orbits.summary,
           sigmaUereM: field.sigmaUereM,

@@ -26,6 +26,8 @@ import { createWorkTypesService } from './workTypes.ts'
 import { createMetaService } from './meta.ts'
 import { createUsersService } from './users.ts'
 import { createTerrainService } from './terrain.ts'
+import { createCorrectionsService } from './corrections.ts'
+import { createSpaceWeatherService } from './spaceWeather.ts'
 
 export function createServices(ctx: ServiceContext) {
   return {
@@ -56,6 +58,8 @@ export function createServices(ctx: ServiceContext) {
     taskData: createTaskDataService(ctx),
     terrain: createTerrainService(ctx),
     audit: createAuditService(ctx),
+    corrections: createCorrectionsService(ctx),
+    spaceWeather: createSpaceWeatherService(ctx),
   }
 }
 export type Services = ReturnType<typeof createServices>

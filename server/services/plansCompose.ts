@@ -23,6 +23,7 @@ import { wakeJobRunners } from '../queue/enqueue.ts'
 import { planHtml, planSubject, planText, revisionSubject, type PlanContent, type PlanDay, type PlanFieldHours, type PlanRiskLine } from '../mail/planTemplate.ts'
 import { clearRuns, passEventData } from './calendar.ts'
 import { hourStates } from './windows.ts'
+import { planSpaceWeather } from './planSpaceWeather.ts'
 
 export const PLAN_SEND_KIND = 'plan-send'
 export const PLAN_SCHEDULE_KIND = 'plan-schedule'
@@ -154,7 +155,9 @@ export async function composePlan(repos: Repositories, farmId: number, weekStart
     forecastNote = `The forecast reaches to ${dt(lastHourMs + HOUR_MS, zone).toFormat('cccc d LLLL HH:mm')}; later hours follow in next week's plan.`
   }
 
+  const spaceWeather = await planSpaceWeather(repos, hours, zone, Date.now(), span.endMs)
   const content: PlanContent = {
+    spaceWeather,
     businessName: business?.name ?? 'Your contractor',
     farmName: farm.name,
     zoneLabel: zoneLabel(zone, span),

@@ -9,7 +9,16 @@ import { rethrowUniqueAsConflict, type ServiceContext } from './context.ts'
 const NAME_TAKEN = 'A service level with this name already exists.'
 
 export function toServiceLevel(row: ServiceLevelRow): ServiceLevel {
-  return { id: row.id, name: row.name, sigmaUereM: row.sigmaUereM, note: row.note }
+  return {
+    id: row.id,
+    name: row.name,
+    sigmaUereM: row.sigmaUereM,
+    note: row.note,
+    ppmH: row.ppmH,
+    ppmV: row.ppmV,
+    maxBaselineKm: row.maxBaselineKm,
+    needsBase: row.needsBase,
+  }
 }
 
 /** "a, b and 3 more" for messages. */
@@ -59,7 +68,10 @@ export function createServiceLevelsService(ctx: ServiceContext) {
           }
           const changes = Object.fromEntries(Object.entries(patch).filter(([, v]) => v !== undefined))
           if (Object.keys(changes).length) await repos.serviceLevels.update(id, changes)
-          sigmaChanged = patch.sigmaUereM !== undefined && patch.sigmaUereM !== before.sigmaUereM
+          // Any change of the error model re-forecasts the fields and work types that use it.
+          sigmaChanged = (['sigmaUereM', 'ppmH', 'ppmV', 'maxBaselineKm', 'needsBase'] as const).some(
+            (k) => patch[k] !== undefined && patch[k] !== before[k],
+          )
           return toServiceLevel((await repos.serviceLevels.findById(id))!)
         })
       } catch (error) {

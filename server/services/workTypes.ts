@@ -24,6 +24,7 @@ export function toWorkType(row: WorkTypeRow): WorkType {
     rateHaPerH: row.rateHaPerH,
     sortOrder: row.sortOrder,
     active: row.active,
+    stormAction: row.stormAction,
   }
 }
 

@@ -10,6 +10,9 @@
  * where required) is >= the required share; Tight when the share meeting it is >= half
  * the required share (this includes failing only the N-1 margin); Closed otherwise.
  * Medians are area-weighted; no-fix samples count as the worst value.
+ * With a baseline (errorModel.ts) the expected errors add 2 ppm_H b and 1.96 ppm_V b and
+ * the DOP limits shrink accordingly; link closures and storm hours are applied after the
+ * aggregation (correction.ts).
  *
  * Sources: 2DRMS = 2 sigma HDOP as the horizontal 95 % figure and 1.96 sigma VDOP (the
  * normal distribution's two-sided 95 % point) as the vertical one, as in Kaplan & Hegarty,
@@ -99,13 +102,16 @@ export interface WorkTest {
 export function workTests(workTypes: readonly WorkType[] | undefined, sigmaUereM: number): WorkTest[] {
   return (workTypes ?? []).map((w) => {
     const sigma = w.sigmaUereM ?? sigmaUereM
+    const bH = w.baselineHM ?? 0
+    const bV = w.baselineVM ?? 0
     return {
       id: w.id,
       minSats: w.minSats,
       maxPdop: w.maxPdop,
-      // Compare DOPs directly: 2 sigma HDOP <= maxH95  <=>  HDOP <= maxH95 / (2 sigma).
-      maxH: w.maxH95M / (2 * sigma),
-      maxV: w.maxV95M === null || w.maxV95M === undefined ? Infinity : w.maxV95M / (1.96 * sigma),
+      // Compare DOPs directly: 2 sigma HDOP <= maxH95  <=>  HDOP <= maxH95 / (2 sigma); with
+      // the baseline part (errorModel.ts): 2 (sigma HDOP + bH) <= maxH95  <=>  HDOP <= (maxH95 / 2 - bH) / sigma.
+      maxH: bH === 0 ? w.maxH95M / (2 * sigma) : (w.maxH95M / 2 - bH) / sigma,
+      maxV: w.maxV95M === null || w.maxV95M === undefined ? Infinity : bV === 0 ? w.maxV95M / (1.96 * sigma) : (w.maxV95M / 1.96 - bV) / sigma,
       required: w.requiredShare,
       requireN1: w.requireN1,
     }
@@ -152,6 +158,9 @@ export interface Aggregation {
   met: Float64Array
   metN1: Float64Array
   sigma: number
+  /** baseline parts ppm b of the field's service (m, errorModel.ts), added to the expected errors */
+  baselineHM: number
+  baselineVM: number
   /** scratch for accumulateHour */
   stats: Float64Array
 }
@@ -215,6 +224,8 @@ export function accumulateHour(a: Aggregation, e0: number, e1: number, st: Float
 /** Aggregates of the epochs [e0, e1) forming the clock hour starting at hourStart. */
 export function aggregateHour(a: Aggregation, e0: number, e1: number, hourStart: number): HourAggregate {
   const { nPts, areaW, rH, rV, tests, vals, wts, satHist, met, metN1, sigma } = a
+  const bH = 2 * a.baselineHM
+  const bV = 1.96 * a.baselineVM
   const n = (e1 - e0) * nPts
   const st = a.stats
   accumulateHour(a, e0, e1, st)
@@ -259,12 +270,12 @@ export function aggregateHour(a: Aggregation, e0: number, e1: number, hourStart:
     pdopMax: anyFix ? round(pMax) : null,
     n1HdopMax: anyFix ? round(finiteOrNull(n1Max)) : null,
     h95M: {
-      median: hMedN === null ? null : round(2 * sigma * hMedN, 6),
-      max: anyFix ? round(2 * sigma * hMax, 6) : null,
+      median: hMedN === null ? null : round(2 * sigma * hMedN + bH, 6),
+      max: anyFix ? round(2 * sigma * hMax + bH, 6) : null,
     },
     v95M: {
-      median: vMedN === null ? null : round(1.96 * sigma * vMedN, 6),
-      max: anyFix ? round(1.96 * sigma * vMax, 6) : null,
+      median: vMedN === null ? null : round(1.96 * sigma * vMedN + bV, 6),
+      max: anyFix ? round(1.96 * sigma * vMax + bV, 6) : null,
     },
     workTypes: tests.map((t, k) => {
       const share = met[k] / totalW
@@ -283,7 +294,10 @@ export function pointDetails(
   tests: WorkTest[],
   sigma: number,
   horizonMaxDeg: Float64Array,
+  baseline: { baselineHM: number; baselineVM: number } = { baselineHM: 0, baselineVM: 0 },
 ): PointHourDetail[] {
+  const bH = 2 * baseline.baselineHM
+  const bV = 1.96 * baseline.baselineVM
   return points.map((pt, p) => {
     let minSats = Infinity
     let hMax = -Infinity
@@ -318,8 +332,8 @@ export function pointDetails(
       vdopMax: any ? round(vMax) : null,
       pdopMax: any ? round(pMax) : null,
       n1HdopMax: any ? round(finiteOrNull(n1)) : null,
-      h95MaxM: any ? round(2 * sigma * hMax, 6) : null,
-      v95MaxM: any ? round(1.96 * sigma * vMax, 6) : null,
+      h95MaxM: any ? round(2 * sigma * hMax + bH, 6) : null,
+      v95MaxM: any ? round(1.96 * sigma * vMax + bV, 6) : null,
       noFixShare: noFix / n,
       horizonMaxDeg: round(horizonMaxDeg[p], 3)!,
       workTypes: tests.map((t, k) => ({ id: t.id, share: round(met[k] / n, 6)!, shareN1: round(metN1[k] / n, 6)! })),

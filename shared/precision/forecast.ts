@@ -11,6 +11,7 @@
  * set and point, not per epoch) and the hourly clock-hour bins are the engine's own.
  */
 import { aggregateHour, pointDetails, workTests, type Aggregation } from './aggregate'
+import { applyHourCorrections } from './correction'
 import { DEG } from './constants'
 import { enuBasis, geodeticToEcef } from './geodesy'
 import { horizonMaskInto, isLeafless, readObstructions, type ObstructionShape } from './horizon'
@@ -239,15 +240,15 @@ export function forecastField(input: FieldForecastInput, now?: () => number): Fi
   const tMaxV = Float64Array.from(tests, (t) => t.maxV)
   const tMaxP = Float64Array.from(tests, (t) => t.maxPdop)
   const tMinSats = Float64Array.from(tests, (t) => t.minSats)
-  const agg: Aggregation = { nPts, areaW, rSats, rH, rV, rP, rN1h, rN1v, rN1p, tests, nTests, tMaxH, tMaxV, tMaxP, tMinSats, vals, wts, satHist, met, metN1, sigma, stats: new Float64Array(7) }
+  const agg: Aggregation = { nPts, areaW, rSats, rH, rV, rP, rN1h, rN1v, rN1p, tests, nTests, tMaxH, tMaxV, tMaxP, tMinSats, vals, wts, satHist, met, metN1, sigma, baselineHM: input.baselineHM ?? 0, baselineVM: input.baselineVM ?? 0, stats: new Float64Array(7) }
   let e0 = 0
   while (e0 < nEp) {
     const hourStart = Math.floor(epochs[e0] / HOUR_MS) * HOUR_MS
     let e1 = e0
     while (e1 < nEp && epochs[e1] < hourStart + HOUR_MS) e1++
-    hours.push(aggregateHour(agg, e0, e1, hourStart))
+    hours.push(applyHourCorrections(aggregateHour(agg, e0, e1, hourStart), input.workTypes, input.kpBlocks))
     if (input.detailHourMs !== undefined && Math.floor(input.detailHourMs / HOUR_MS) * HOUR_MS === hourStart) {
-      detail = { hourStartMs: hourStart, points: pointDetails(points, r, e0, e1, nPts, tests, sigma, horizonMax[setOfEpoch[e0]]) }
+      detail = { hourStartMs: hourStart, points: pointDetails(points, r, e0, e1, nPts, tests, sigma, horizonMax[setOfEpoch[e0]], agg) }
     }
     e0 = e1
   }

@@ -7,6 +7,8 @@
  */
 import type { FeatureCollection } from 'geojson'
 import type { DopWeights } from './dop'
+import type { HourReason, LinkReason } from './errorModel'
+import type { KpBlock, StormAction } from './spaceWeather'
 import type { Satellite } from './orbits/types'
 import type { PropagationOptions } from './propagation'
 import type { FieldGeometry, SamplePoint } from './sampling'
@@ -35,6 +37,14 @@ export interface WorkType {
   requireN1: boolean
   /** sigma_UERE of this work's correction service (m); defaults to the forecast's */
   sigmaUereM?: number
+  /** baseline part ppm_H b of this work's service on this field (m, errorModel.ts); default 0 */
+  baselineHM?: number
+  /** baseline part ppm_V b (m); default 0 */
+  baselineVM?: number
+  /** set when the field's correction link rules the work out (out of range, past the baseline limit) */
+  closedReason?: LinkReason | null
+  /** what a G3-or-worse hour does to this work (spaceWeather.ts); default 'none' */
+  stormAction?: StormAction
 }
 
 /** The state of an hour for a work type. */
@@ -74,6 +84,11 @@ export interface FieldForecastInput extends SkySettings {
   heightM?: number
   /** ranging sigma of the field's correction service (m) */
   sigmaUereM: number
+  /** baseline parts ppm b of the field's own service (m) for the hours' expected errors; default 0 */
+  baselineHM?: number
+  baselineVM?: number
+  /** Kp forecast blocks; hours they cover carry their space weather */
+  kpBlocks?: readonly KpBlock[]
   workTypes?: readonly WorkType[]
   /** about this many sample points, default 64 */
   sampleCount?: number
@@ -126,7 +141,9 @@ export interface HourAggregate {
   /** expected horizontal / vertical error at 95 % for sigmaUereM (m) */
   h95M: MedianMax
   v95M: MedianMax
-  workTypes: Array<{ id: string; share: number; shareN1: number; state: HourState }>
+  workTypes: Array<{ id: string; share: number; shareN1: number; state: HourState; reason?: HourReason }>
+  /** highest Kp over the hour and its G level; null when no Kp block covers it (absent when no Kp data was given) */
+  spaceWeather?: { kpMax: number; g: number } | null
 }
 
 /** Per-sample-point values over one hour (for a map of the field). */

@@ -46,6 +46,8 @@ export const workTypeHourSchema = z.object({
   /** 0..1 meeting them with the most damaging satellite lost */
   shareN1: z.number(),
   state: z.enum(hourStates),
+  /** why the state is worse than the geometry: the correction link or a storm (shared/precision/correction.ts) */
+  reason: z.enum(['no-source', 'out-of-range', 'baseline-limit', 'storm']).optional(),
 })
 export type WorkTypeHour = z.infer<typeof workTypeHourSchema>
 
@@ -94,6 +96,8 @@ export const forecastHourSchema = hourFiguresSchema.extend({
   time: z.string(),
   /** keyed by work type id (as text) */
   workTypes: z.record(z.string(), workTypeHourSchema),
+  /** highest Kp of the hour and its NOAA G level; null: no Kp forecast covers it; absent: stored before Kp data */
+  spaceWeather: z.object({ kpMax: z.number(), g: z.int() }).nullable().optional(),
 })
 export type ForecastHour = z.infer<typeof forecastHourSchema>
 

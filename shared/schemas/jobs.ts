@@ -7,7 +7,7 @@ import { z } from 'zod'
 export const jobStatuses = ['queued', 'running', 'done', 'failed', 'superseded'] as const
 export type JobStatus = (typeof jobStatuses)[number]
 
-export const jobKinds = ['forecast', 'nightly-refresh', 'orbit-feed'] as const
+export const jobKinds = ['forecast', 'nightly-refresh', 'orbit-feed', 'space-weather'] as const
 export type JobKind = (typeof jobKinds)[number]
 
 /** Why a forecast job was queued (shown in the Jobs list). */

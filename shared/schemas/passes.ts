@@ -3,6 +3,7 @@
 // IANA time zone so pages and exports show farm-local times.
 import { z } from 'zod'
 import { idSchema } from './common'
+import type { HourErrorBudget } from './corrections'
 import type { HourFigures } from './forecast'
 
 /**
@@ -194,6 +195,8 @@ export interface HourWorkState {
   share: number
   shareN1: number
   state: 'clear' | 'tight' | 'closed'
+  /** why the state is worse than the geometry (corrections.ts) */
+  reason?: 'no-source' | 'out-of-range' | 'baseline-limit' | 'storm'
 }
 
 /** The stored figures of one forecast hour (null: no fix or not computed). */
@@ -238,6 +241,8 @@ export interface HourDetail {
   hourStart: string
   /** what the forecast job stored for this hour; null when nothing is stored */
   stored: StoredHourFigures | null
+  /** geometry x sigma, the baseline part and the space weather of the hour (corrections.ts) */
+  errorBudget: HourErrorBudget
   /** computed now with the active orbit data, outages and the farm's obstructions */
   computed: {
     orbitSummary: string

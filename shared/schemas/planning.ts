@@ -12,9 +12,23 @@ const serviceLevelFields = {
     .positive('sigma must be above 0 m')
     .max(100, 'sigma must be at most 100 m'),
   note: z.string().trim().max(500, 'Use at most 500 characters'),
+  /** Error model with a baseline (shared/precision/errorModel.ts): mm per km, horizontal and vertical. */
+  ppmH: z.number({ error: 'Enter the horizontal part in mm per km' }).min(0, 'The mm per km part cannot be negative').max(100, 'The mm per km part must be at most 100'),
+  ppmV: z.number({ error: 'Enter the vertical part in mm per km' }).min(0, 'The mm per km part cannot be negative').max(100, 'The mm per km part must be at most 100'),
+  /** null: no limit */
+  maxBaselineKm: z.number({ error: 'Enter the longest baseline in km, or leave it empty' }).positive('The longest baseline must be above 0 km').max(1000, 'The longest baseline must be at most 1000 km').nullable(),
+  /** the service needs a base station or network (RTK) */
+  needsBase: z.boolean(),
 }
 
-export const serviceLevelInputSchema = z.object({ ...serviceLevelFields, note: serviceLevelFields.note.default('') })
+export const serviceLevelInputSchema = z.object({
+  ...serviceLevelFields,
+  note: serviceLevelFields.note.default(''),
+  ppmH: serviceLevelFields.ppmH.default(0),
+  ppmV: serviceLevelFields.ppmV.default(0),
+  maxBaselineKm: serviceLevelFields.maxBaselineKm.default(null),
+  needsBase: serviceLevelFields.needsBase.default(false),
+})
 export type ServiceLevelInput = z.infer<typeof serviceLevelInputSchema>
 export const serviceLevelPatchSchema = z.object(serviceLevelFields).partial()
 export type ServiceLevelPatch = z.infer<typeof serviceLevelPatchSchema>
@@ -52,10 +66,13 @@ const workTypeFields = {
     .max(1000, 'The work rate must be at most 1000 ha/h'),
   sortOrder: z.number().int().min(0).max(1000),
   active: z.boolean(),
+  /** What an hour of a G3-or-worse geomagnetic storm does to this work. */
+  stormAction: z.enum(['none', 'tight', 'closed'], { error: 'Choose none, tight or closed for storm hours' }),
 }
 
 export const workTypeInputSchema = z.object({
   ...workTypeFields,
+  stormAction: workTypeFields.stormAction.default('none'),
   maxV95M: workTypeFields.maxV95M.default(null),
   sortOrder: workTypeFields.sortOrder.default(0),
   active: workTypeFields.active.default(true),

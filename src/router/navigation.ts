@@ -23,6 +23,7 @@ const mainLinks: (NavLink & { name: NavPageName })[] = [
   { name: RouteNames.cab, label: 'In the cab', hint: 'My passes, also offline' },
   { name: RouteNames.plans, label: 'Plans', hint: 'Weekly e-mails to clients' },
   { name: RouteNames.orbits, label: 'Orbits', hint: 'Satellite data and outages' },
+  { name: RouteNames.corrections, label: 'Corrections', hint: 'RTK bases, networks, space weather' },
 ]
 
 const adminLinks: (NavLink & { name: NavPageName })[] = [

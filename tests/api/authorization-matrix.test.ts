@@ -333,6 +333,20 @@ const matrix: Record<string, Row> = {
   'GET /api/jobs': { expect: only(['admin', 'office'], 200) },
   'GET /api/jobs/summary': { expect: signedIn(200) },
   'GET /api/jobs/storage': { expect: only(['admin', 'office'], 200) },
+  // RTK base stations, correction networks, a field's source, the Kp feed (tests/api/corrections).
+  'GET /api/corrections': { expect: signedIn(200) },
+  'POST /api/base-stations': { call: () => ({ body: {} }), expect: only(['admin', 'office'], 400) },
+  'PATCH /api/base-stations/:id': { call: () => ({ params: { id: 999_999 }, body: {} }), expect: only(['admin', 'office'], 404) },
+  'DELETE /api/base-stations/:id': { call: () => ({ params: { id: 999_999 } }), expect: only(['admin', 'office'], 404) },
+  'POST /api/correction-networks': { call: () => ({ body: {} }), expect: only(['admin', 'office'], 400) },
+  'PATCH /api/correction-networks/:id': { call: () => ({ params: { id: 999_999 }, body: {} }), expect: only(['admin', 'office'], 404) },
+  'DELETE /api/correction-networks/:id': { call: () => ({ params: { id: 999_999 } }), expect: only(['admin', 'office'], 404) },
+  'GET /api/fields/:id/correction': { call: async (f) => ({ params: { id: await throwawayField(f) } }), expect: { ...signedIn(200), otherClient: 404 } },
+  'PUT /api/fields/:id/correction': { call: async (f) => ({ params: { id: await throwawayField(f) }, body: { kind: 'auto' } }), expect: farmEditors(200) },
+  'GET /api/space-weather/kp-forecast.json': { expect: everyone(200) },
+  'GET /api/space-weather': { expect: signedIn(200) },
+  // The test configuration's public address does not resolve: staff get the feed failure (502).
+  'POST /api/space-weather/run': { expect: only(['admin', 'office'], 502) },
 }
 
 // ---- running it ---------------------------------------------------------------------

@@ -90,9 +90,11 @@ describe('recompute and read a field forecast', () => {
       if (h.hdopMax !== null) expect(h.hdopMax).toBeGreaterThanOrEqual(h.hdopMedian ?? 0)
       expect(h.satsMin).toBeGreaterThanOrEqual(0)
     }
-    // 95 % horizontal error ~ 2 sigma HDOP with the RTK sigma of the field.
+    // 95 % horizontal error = 2 (sigma HDOP + ppm_H b) with the RTK sigma of the field and the
+    // baseline part of its RTK link (DESIGN.md "Beyond geometry"; the link's figure from its own route).
+    const link = (await as.clientNorth.get(`/api/fields/${northField.id}/correction`)).body as { serviceLevel: { baselineH95M: number } }
     const h = fc.hours.find((x) => x.hdopMedian !== null)!
-    expect(h.h95MedianM!).toBeCloseTo(2 * 0.012 * h.hdopMedian!, 4)
+    expect(h.h95MedianM!).toBeCloseTo(2 * 0.012 * h.hdopMedian! + link.serviceLevel.baselineH95M, 4)
   })
 
   it('answers a range inside the window, and refuses bad ranges naming the parameter', async () => {

@@ -61,12 +61,12 @@ const expected: {
     email: demo.contractor,
     role: 'contractor',
     shot: 'nav-contractor',
-    links: ['Outlook', 'Fields', 'Passes'],
+    links: ['Outlook', 'Fields', 'Passes', 'Corrections'],
     exact: true,
     forbidden: [],
   },
-  { email: demo.clientNorth, role: 'client', shot: 'nav-client-north', links: ['Outlook', 'Passes'], exact: true, forbidden: [] },
-  { email: demo.clientSouth, role: 'client', shot: 'nav-client-south', links: ['Outlook', 'Passes'], exact: true, forbidden: [] },
+  { email: demo.clientNorth, role: 'client', shot: 'nav-client-north', links: ['Outlook', 'Passes', 'Corrections'], exact: true, forbidden: [] },
+  { email: demo.clientSouth, role: 'client', shot: 'nav-client-south', links: ['Outlook', 'Passes', 'Corrections'], exact: true, forbidden: [] },
 ]
 
 describe('sign-in and navigation by role', { timeout: 120_000 }, () => {

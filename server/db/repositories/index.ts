@@ -23,6 +23,7 @@ import { sessionsRepository } from './sessions.ts'
 import { tokensRepository } from './tokens.ts'
 import { terrainRepository } from './terrain.ts'
 import { usersRepository } from './users.ts'
+import { correctionsRepository } from './corrections.ts'
 
 export function createRepositories(db: DbOrTx) {
   return {
@@ -47,6 +48,7 @@ export function createRepositories(db: DbOrTx) {
     outages: outagesRepository(db),
     terrain: terrainRepository(db),
     audit: auditRepository(db),
+    corrections: correctionsRepository(db),
   }
 }
 export type Repositories = ReturnType<typeof createRepositories>

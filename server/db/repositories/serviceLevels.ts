@@ -8,6 +8,10 @@ export interface NewServiceLevel {
   name: string
   sigmaUereM: number
   note: string
+  ppmH?: number
+  ppmV?: number
+  maxBaselineKm?: number | null
+  needsBase?: boolean
 }
 
 export function serviceLevelsRepository(db: DbOrTx) {

@@ -15,6 +15,7 @@ export interface NewWorkType {
   rateHaPerH: number
   sortOrder: number
   active: boolean
+  stormAction?: 'none' | 'tight' | 'closed'
 }
 
 export function workTypesRepository(db: DbOrTx) {

@@ -40,6 +40,12 @@ export const workRoutes: RouteRecordRaw[] = [
     meta: { title: 'Orbits', roles: pageRoles[RouteNames.orbits] },
   },
   {
+    path: '/corrections',
+    name: RouteNames.corrections,
+    component: () => import('@/views/CorrectionsView.vue'),
+    meta: { title: 'Corrections', roles: pageRoles[RouteNames.corrections] },
+  },
+  {
     path: '/farms/:id(\\d+)',
     name: RouteNames.farm,
     component: () => import('@/views/FarmView.vue'),

@@ -8,17 +8,17 @@ function labels(role: Role, fakeMailbox: boolean): string[] {
 }
 
 describe('navigation by role', () => {
-  it('shows a farm client only the Outlook and Passes', () => {
-    expect(labels('client', true)).toEqual(['Outlook', 'Passes'])
+  it('shows a farm client only the Outlook, Passes and the correction sources of their farms', () => {
+    expect(labels('client', true)).toEqual(['Outlook', 'Passes', 'Corrections'])
   })
 
-  it('shows a contractor the Outlook, Fields and Passes', () => {
-    expect(labels('contractor', true)).toEqual(['Outlook', 'Fields', 'Passes', 'In the cab'])
+  it('shows a contractor the Outlook, Fields, Passes, the cab view and Corrections', () => {
+    expect(labels('contractor', true)).toEqual(['Outlook', 'Fields', 'Passes', 'In the cab', 'Corrections'])
   })
 
   it('shows office staff everything except farm and user management', () => {
     expect(labels('office', true)).toEqual([
-      'Outlook', 'Fields', 'Passes', 'In the cab', 'Plans', 'Orbits', 'Work types', 'Service levels', 'Machines', 'Forecast jobs', 'Mailbox',
+      'Outlook', 'Fields', 'Passes', 'In the cab', 'Plans', 'Orbits', 'Corrections', 'Work types', 'Service levels', 'Machines', 'Forecast jobs', 'Mailbox',
     ])
   })
 
@@ -26,7 +26,7 @@ describe('navigation by role', () => {
     const sections = navigationFor('admin', { fakeMailbox: true })
     expect(sections.map((s) => s.heading)).toEqual([null, 'Admin', 'Local mail'])
     expect(labels('admin', true)).toEqual([
-      'Outlook', 'Fields', 'Passes', 'In the cab', 'Plans', 'Orbits', 'Farms', 'Users', 'Work types', 'Service levels', 'Machines', 'Forecast jobs',
+      'Outlook', 'Fields', 'Passes', 'In the cab', 'Plans', 'Orbits', 'Corrections', 'Farms', 'Users', 'Work types', 'Service levels', 'Machines', 'Forecast jobs',
       'Mailbox',
     ])
   })

@@ -193,7 +193,7 @@ describe('units', () => {
 })
 
 describe('chart limits', () => {
-  const rtk: ServiceLevel = { id: 3, name: 'RTK', sigmaUereM: 0.012, note: '' }
+  const rtk: ServiceLevel = { id: 3, name: 'RTK', sigmaUereM: 0.012, note: '', ppmH: 0, ppmV: 0, maxBaselineKm: null, needsBase: false }
   const tile: WorkType = {
     id: 4,
     name: 'Tile drainage',
@@ -207,6 +207,7 @@ describe('chart limits', () => {
     rateHaPerH: 1.5,
     sortOrder: 4,
     active: true,
+    stormAction: 'closed',
   }
 
   it('turns the maximum errors into DOP limits with 2DRMS and 1.96 sigma (DESIGN.md: HDOP ≈ 2.1, VDOP ≈ 1.7)', () => {

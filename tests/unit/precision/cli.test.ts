@@ -102,3 +102,42 @@ describe('forecast CLI, bad input', () => {
     expect(r.stderr).toMatch(/^forecast: /)
   })
 })
+
+describe('forecast CLI, RTK baseline flags', () => {
+  const FIELD = ['--field', fx('cli/field.geojson'), '--start', '2026-12-02T06:00:00Z', '--hours', '1', '--step', '15', '--samples', '16', '--sigma', '0.012']
+
+  it('point mode carries the WGS-84 geodesic baselineKm and its 95 % parts', () => {
+    // GeographicLib documentation example (geographiclib-geodesic README): Wellington (41.32 S, 174.81 E)
+    // to Salamanca (40.96 N, 5.50 W) is 19,959,679.267 m.
+    const r = forecast(['--orbits', 'nominal:gps', '--lat', '-41.32', '--lon', '174.81', '--hours', '1', '--step', '30', '--base', '40.96,-5.50,800', '--ppm-h', '1', '--ppm-v', '2'])
+    expect(r.status).toBe(0)
+    const out = JSON.parse(r.stdout)
+    expect(out.baselineKm).toBeCloseTo(19959.679267, 6)
+    // By hand: 2 x 1 mm/km x 19959.679 km = 39.919 m; 1.96 x 2 mm/km x 19959.679 km = 78.242 m.
+    expect(out.baselineH95M).toBeCloseTo(39.919358534, 6)
+    expect(out.baselineV95M).toBeCloseTo(78.241942782, 6)
+  })
+
+  it('field mode adds 2 ppm_H b to the expected errors and closes RTK work past the baseline limit', () => {
+    const plain = JSON.parse(forecast(['--orbits', 'nominal:gps', ...FIELD]).stdout)
+    const r = forecast(['--orbits', 'nominal:gps', ...FIELD, '--base', '52.05,5.70', '--ppm-h', '1', '--ppm-v', '1', '--max-baseline-km', '2'])
+    expect(r.status).toBe(0)
+    const out = JSON.parse(r.stdout)
+    expect(Object.keys(out)).toEqual(['baselineKm', 'farthestKm', 'hours'])
+    expect(out.baselineKm).toBeGreaterThan(2)
+    expect(out.hours[0].h95M.max - plain.hours[0].h95M.max).toBeCloseTo((2 * out.baselineKm) / 1000, 5)
+    const planting = out.hours[0].workTypes.find((w: { id: string }) => w.id === 'planting')
+    expect(planting).toMatchObject({ state: 'closed', reason: 'baseline-limit' })
+    const spraying = out.hours[0].workTypes.find((w: { id: string }) => w.id === 'spraying')
+    expect(spraying.reason).toBeUndefined() // SBAS work needs no base
+  })
+
+  it('refuses a base off the globe and ppm without a base, with exit status 2', () => {
+    const off = forecast(['--orbits', 'nominal:gps', ...POINT, '--base', '95,5'])
+    expect(off.status).toBe(2)
+    expect(off.stderr).toMatch(/latitude must be in \[-90, 90\]/)
+    const lone = forecast(['--orbits', 'nominal:gps', ...POINT, '--ppm-h', '1'])
+    expect(lone.status).toBe(2)
+    expect(lone.stderr).toMatch(/need --base/)
+  })
+})
