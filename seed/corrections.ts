@@ -1,9 +1,10 @@
-// The demo scenario's RTK correction sources (invented): two of the contractor's own base
+// The demo scenario's RTK correction sources (invented): three of the contractor's own base
 // stations and one correction network. The Iowa farm works from the base in its yard; the
 // Nebraska farm from a base on a grain leg north-west of its benches, whose radio reaches
 // 4.7 km, so the far corner of Beet Ground (about 5 km away) is out of range and its RTK
 // hours are Closed; the Kansas and Colorado farms lie inside the network's coverage and use
-// its nearest mount point.
+// its nearest mount point; the hill farm in Pennsylvania (seed/terrain.ts) from a base on
+// the ridge above its hollow.
 //
 // Idempotent: the sources are added only while there are none, in one transaction.
 import type { Database } from '../server/db/index.ts'
@@ -21,10 +22,13 @@ const IOWA: [number, number] = [-93.4127, 42.3183]
 const KANSAS: [number, number] = [-97.8342, 38.0716]
 const COLORADO: [number, number] = [-103.5521, 40.4237]
 const NEBRASKA: [number, number] = [-103.7188, 41.8634]
+// The hill farm's origin as in seed/terrain.ts.
+const PENNSYLVANIA: [number, number] = [-77.418, 41.262]
 
 export const demoBases = [
   { name: 'Hollis yard base', ...at(IOWA, 1500, 1200), antennaHeightM: 6, radioRangeKm: 15, note: 'On the machine-shed roof; UHF radio.' },
   { name: 'Meadowlark grain-leg base', ...at(NEBRASKA, -2500, -1500), antennaHeightM: 30, radioRangeKm: 4.7, note: 'Low-power radio on the grain leg; hills to the east cut it short.' },
+  { name: 'Larch Gap ridge base', ...at(PENNSYLVANIA, -900, 1400), antennaHeightM: 8, radioRangeKm: 12, note: 'On the west ridge above the hollow, clear of the valley walls.' },
 ]
 
 export const demoNetwork = {
