@@ -123,6 +123,19 @@ describe('a field out of its base station\'s radio range', () => {
     // The panel sits below the field editor in the side column, which scrolls on its own.
     await page.getByTestId('field-correction').screenshot({ path: join(artifactsDir, 'corrections-field-out-of-range.png') })
 
+    // The sky check in the field (the map is centred on it): its error budget names the
+    // baseline to the base and says why Planting is Closed.
+    await page.getByTestId('tool-sky-check').click()
+    await expect.poll(() => page.getByTestId('tool-help').textContent()).toMatch(/Click a point inside a field/)
+    const box = (await page.getByTestId('farm-map').boundingBox())!
+    await page.mouse.click(box.x + box.width / 2, box.y + box.height / 2)
+    const budget = page.getByTestId('sky-check').getByTestId('error-budget')
+    await budget.waitFor()
+    expect(await budget.getByTestId('budget-baseline').textContent()).toContain(`${after.link!.baselineKm.toFixed(1)} km to ${base.name}`)
+    await budget.getByText('Planting is Closed: the field is outside the radio range').waitFor()
+    expect(await budget.getByTestId('budget-space-weather').textContent()).toMatch(/Space weather: (Kp|geomagnetic storm|no Kp forecast)/)
+    await page.getByTestId('sky-check').screenshot({ path: join(artifactsDir, 'corrections-sky-check-budget.png') })
+
     // The stored week after the recompute: every Planting hour Closed, out of range.
     const farm = await waitForForecast(page, server, farmId, field.id)
     const hours = farm.fields.find((f) => f.fieldId === field.id)!.hours
