@@ -146,7 +146,7 @@ describe('admin: farms, users and the invitation mail', { timeout: 120_000 }, ()
 
     // ... signs in, and sees the client navigation and only the new farm.
     await signIn(page, server.baseUrl, clientEmail, clientPassword)
-    expect(await navigationLabels(page)).toEqual(['Outlook', 'Passes'])
+    expect(await navigationLabels(page)).toEqual(['Outlook', 'Passes', 'Corrections'])
     const farms = await apiFromPage(page, '/api/farms?pageSize=200')
     expect(farms.status).toBe(200)
     const items = (farms.body as { items: { id: number; name: string }[] }).items
