@@ -38,14 +38,31 @@ describe('who sees which correction source', () => {
     const all = (await crew.get('/api/corrections')).body as CorrectionSources
     expect(all.bases.map((b) => b.name)).toEqual(expect.arrayContaining(['Hollis yard base', 'Meadowlark grain-leg base']))
     expect(all.networks.map((n) => n.name)).toContain('Prairie Reference Network')
-    // The north client's farm (Iowa) works from the yard base only.
+    // A client sees exactly the sources their farms' fields use (other test files may add
+    // fields to the demo farms, so the expected set is read from the fields themselves).
+    async function sourcesUsedBy(client: Client) {
+      const bases = new Set<string>()
+      const networks = new Set<string>()
+      for (const farmId of ((await client.get('/api/auth/me')).body as { farmIds: number[] }).farmIds) {
+        for (const f of (await client.get(`/api/farms/${farmId}/fields`)).body as Array<{ id: number }>) {
+          const { link } = (await client.get(`/api/fields/${f.id}/correction`)).body as FieldCorrection
+          if (link) (link.kind === 'base' ? bases : networks).add(link.name)
+        }
+      }
+      return { bases: [...bases].sort(), networks: [...networks].sort() }
+    }
+    const names = (list: Array<{ name: string }>) => list.map((x) => x.name).sort()
+    // The north client's farm (Iowa) works from the yard base.
     const mine = (await north.get('/api/corrections')).body as CorrectionSources
-    expect(mine.bases.map((b) => b.name)).toEqual(['Hollis yard base'])
-    expect(mine.networks).toEqual([])
+    expect(names(mine.bases)).toContain('Hollis yard base')
+    expect({ bases: names(mine.bases), networks: names(mine.networks) }).toEqual(await sourcesUsedBy(north))
     // The south client's farms (Kansas, Nebraska) use the network and the grain-leg base.
     const theirs = (await south.get('/api/corrections')).body as CorrectionSources
-    expect(theirs.bases.map((b) => b.name)).toEqual(['Meadowlark grain-leg base'])
-    expect(theirs.networks.map((n) => n.name)).toEqual(['Prairie Reference Network'])
+    expect(names(theirs.bases)).toContain('Meadowlark grain-leg base')
+    expect(names(theirs.networks)).toEqual(['Prairie Reference Network'])
+    expect({ bases: names(theirs.bases), networks: names(theirs.networks) }).toEqual(await sourcesUsedBy(south))
+    // Neither sees the other's base unless one of their own fields uses it.
+    expect(names(mine.bases)).not.toContain('Meadowlark grain-leg base')
   })
 
   it('contractors and clients cannot change sources; office staff can', async () => {

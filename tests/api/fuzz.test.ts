@@ -86,7 +86,7 @@ const deepJson = fc.tuple(fc.integer({ min: 500, max: 20_000 }), fc.boolean()).m
 )
 
 /** Write routes whose fuzzing would end the caller's session or reach the network. */
-const skipped = new Set(['POST /api/auth/sign-out', 'POST /api/auth/sign-out-everywhere', 'POST /api/orbit-feed/run'])
+const skipped = new Set(['POST /api/auth/sign-out', 'POST /api/auth/sign-out-everywhere', 'POST /api/orbit-feed/run', 'POST /api/space-weather/run'])
 /** Upload routes: fuzzed with files below. */
 const uploads = new Set(['POST /api/farms/:id/fields/import/preview', 'POST /api/farms/:id/fields/import', 'POST /api/orbit-sets'])
 

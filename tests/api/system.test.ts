@@ -99,15 +99,17 @@ describe('errors', () => {
   })
 
   it('never sends a stack trace outside development', async () => {
-    // A database that cannot be reached makes sign-in fail with a 500.
+    // A database that cannot be reached makes sign-in fail with a 503 and a sentence (the
+    // 500 of any other unexpected error hides its stack too: tests/unit/server/http.test.ts).
     const url = new URL(server.config.databaseUrl)
     url.port = '1'
     const broken = openDatabase(url.toString(), { connectionLimit: 1 })
     try {
       const app = createApp({ config: server.config, db: broken.db, mailer: server.mailer })
       const res = await new Client(app).post('/api/auth/sign-in', { email: demo.admin, password: 'whatever-it-is' })
-      expect(res.status).toBe(500)
-      expect(res.body.error.code).toBe('internal')
+      expect(res.status).toBe(503)
+      expect(res.body.error.code).toBe('database_unavailable')
+      expect(res.body.error.message).toMatch(/database is not reachable/)
       expect(JSON.stringify(res.body)).not.toMatch(/at .*\.ts/)
     } finally {
       await broken.close()

@@ -61,7 +61,7 @@ const expected: {
     email: demo.contractor,
     role: 'contractor',
     shot: 'nav-contractor',
-    links: ['Outlook', 'Fields', 'Passes', 'Corrections'],
+    links: ['Outlook', 'Fields', 'Passes', 'In the cab', 'Corrections'],
     exact: true,
     forbidden: [],
   },
