@@ -19,7 +19,6 @@
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process'
 import { cpus } from 'node:os'
 import { join, resolve } from 'node:path'
-import autocannon from 'autocannon'
 import { defaultJobConcurrency } from '../../server/config.ts'
 import { openDatabase } from '../../server/db/index.ts'
 import { runMigrations } from '../../server/db/migrate.ts'
@@ -27,6 +26,7 @@ import { createRepositories } from '../../server/db/repositories/index.ts'
 import { seedDemo } from '../../seed/index.ts'
 import { freePort } from '../e2e/support.ts'
 import { ensureForecastFields } from '../support/forecastFields.ts'
+import { load as loadPaths, percentile, type LoadResult } from '../support/serverProcess.ts'
 
 const root = resolve(import.meta.dirname, '..', '..')
 const CONNECTIONS = 50
@@ -40,56 +40,9 @@ function databaseUrl(): string {
   return out.stdout.trim().split('\n').pop()!
 }
 
-function percentile(sorted: number[], p: number): number {
-  if (sorted.length === 0) return NaN
-  const i = Math.min(sorted.length - 1, Math.max(0, Math.ceil((p / 100) * sorted.length) - 1))
-  return sorted[i]
-}
-
-interface LoadResult {
-  requests: number
-  errors: number
-  non2xx: number
-  p50: number
-  p95: number
-  p99: number
-  max: number
-  rps: number
-}
-
-/** Runs autocannon until `until` resolves (or for `seconds`), collecting every latency. */
+/** Reads of the fields' stored weeks at CONNECTIONS clients until `until` (the shared load runner). */
 function load(baseUrl: string, cookie: string, fieldIds: number[], until: Promise<unknown> | number): Promise<LoadResult> {
-  return new Promise((resolveLoad, reject) => {
-    const latencies: number[] = []
-    const started = Date.now()
-    const instance = autocannon(
-      {
-        url: baseUrl,
-        connections: CONNECTIONS,
-        duration: typeof until === 'number' ? until : 600,
-        // What the app's own requests carry (a browser always offers compression).
-        headers: { cookie, accept: 'application/json', 'accept-encoding': 'gzip, deflate, br' },
-        requests: fieldIds.map((id) => ({ method: 'GET' as const, path: `/api/fields/${id}/forecast` })),
-      },
-      (error, result) => {
-        if (error) return reject(error)
-        const sorted = latencies.sort((a, b) => a - b)
-        const seconds = (Date.now() - started) / 1000
-        resolveLoad({
-          requests: sorted.length,
-          errors: result.errors,
-          non2xx: result.non2xx,
-          p50: percentile(sorted, 50),
-          p95: percentile(sorted, 95),
-          p99: percentile(sorted, 99),
-          max: sorted[sorted.length - 1] ?? NaN,
-          rps: sorted.length / seconds,
-        })
-      },
-    )
-    instance.on('response', (_client: unknown, _status: number, _bytes: number, ms: number) => latencies.push(ms))
-    if (typeof until !== 'number') void until.finally(() => instance.stop())
-  })
+  return loadPaths(baseUrl, cookie, fieldIds.map((id) => `/api/fields/${id}/forecast`), until, CONNECTIONS)
 }
 
 async function main(): Promise<void> {
