@@ -6,7 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { CrewWeek } from '../../shared/schemas/crew.ts'
 import type { Pass } from '../../shared/schemas/passes.ts'
 import { composePlan, mondayOf } from '../../server/services/plansCompose.ts'
-import { hoursFromNow, makeField, makeMachine, planningWorld, storeForecast, type PlanningWorld } from '../support/passes.ts'
+import { hoursFromNow, makeField, makeMachine, planningWorld, type PlanningWorld, removeMadeRecords, storeForecast } from '../support/passes.ts'
 import { createUserWithPassword, signIn, startTestServer, type Client, type TestServer } from '../support/server.ts'
 
 let server: TestServer
@@ -31,6 +31,7 @@ beforeAll(async () => {
 })
 afterAll(async () => {
   for (const id of made) await server.repos.passes.update(id, { status: 'cancelled' })
+  if (server) await removeMadeRecords(server)
   await server?.close()
 })
 

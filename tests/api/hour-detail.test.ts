@@ -6,7 +6,7 @@ import { dopFromDirections } from '../../shared/precision/index.ts'
 import { HOUR_MS } from '../../shared/planning/index.ts'
 import type { HourDetail } from '../../shared/schemas/passes.ts'
 import { clearListeners } from '../../server/events.ts'
-import { hoursFromNow, makeField, planningWorld, storeForecast, type PlanningWorld } from '../support/passes.ts'
+import { hoursFromNow, makeField, planningWorld, type PlanningWorld, removeMadeRecords, storeForecast } from '../support/passes.ts'
 import { startTestServer, unique, type TestServer } from '../support/server.ts'
 
 let server: TestServer
@@ -38,6 +38,7 @@ beforeAll(async () => {
 })
 afterAll(async () => {
   clearListeners()
+  if (server) await removeMadeRecords(server)
   await server?.close()
 })
 

@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { HOUR_MS } from '../../shared/planning/index.ts'
 import type { Pass } from '../../shared/schemas/passes.ts'
 import { clearListeners } from '../../server/events.ts'
-import { makeField, makeMachine, hoursFromNow, planningWorld, type PlanningWorld } from '../support/passes.ts'
+import { hoursFromNow, makeField, makeMachine, planningWorld, type PlanningWorld, removeMadeRecords } from '../support/passes.ts'
 import { startTestServer, type TestServer } from '../support/server.ts'
 
 let server: TestServer
@@ -28,6 +28,7 @@ beforeAll(async () => {
 })
 afterAll(async () => {
   clearListeners()
+  if (server) await removeMadeRecords(server)
   await server?.close()
 })
 

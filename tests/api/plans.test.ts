@@ -17,7 +17,7 @@ import { createLogger } from '../../server/logger.ts'
 import { createMailer, type Mailer, type OutgoingMail } from '../../server/mail/transport.ts'
 import { SAFETY_CAUTION } from '../../server/mail/planTemplate.ts'
 import { mondayOf } from '../../server/services/plansCompose.ts'
-import { hoursFromNow, makeField, makeMachine, planningWorld, storeForecast, type PlanningWorld } from '../support/passes.ts'
+import { hoursFromNow, makeField, makeMachine, planningWorld, type PlanningWorld, removeMadeRecords, storeForecast } from '../support/passes.ts'
 import { Client, createUserWithPassword, demo, startTestServer, unique, type TestServer } from '../support/server.ts'
 
 let server: TestServer
@@ -120,6 +120,7 @@ beforeAll(async () => {
 afterAll(async () => {
   await runner?.stop()
   await pool.close()
+  if (server) await removeMadeRecords(server)
   await server?.close()
 })
 

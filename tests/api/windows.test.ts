@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { HOUR_MS, isNightHour } from '../../shared/planning/index.ts'
 import type { WindowSearchResult } from '../../shared/schemas/passes.ts'
 import { clearListeners } from '../../server/events.ts'
-import { hoursFromNow, makeField, makeMachine, planningWorld, storeForecast, type PlanningWorld } from '../support/passes.ts'
+import { hoursFromNow, makeField, makeMachine, planningWorld, type PlanningWorld, removeMadeRecords, storeForecast } from '../support/passes.ts'
 import { startTestServer, type TestServer } from '../support/server.ts'
 
 let server: TestServer
@@ -24,6 +24,7 @@ beforeAll(async () => {
 })
 afterAll(async () => {
   clearListeners()
+  if (server) await removeMadeRecords(server)
   await server?.close()
 })
 

@@ -6,7 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Pass } from '@shared/schemas/passes'
 import { openDatabase } from '../../server/db/index.ts'
 import { createRepositories } from '../../server/db/repositories/index.ts'
-import { hoursFromNow, makeField, storeForecast } from '../support/passes.ts'
+import { hoursFromNow, makeField, removeMadeRecords, storeForecast } from '../support/passes.ts'
 import { demo, postFromPage, screenshot, signIn, startBrowser, startServer, type RunningBrowser, type RunningServer } from './support'
 
 let server: RunningServer
@@ -14,7 +14,6 @@ let browser: RunningBrowser
 const handle = openDatabase(process.env.DATABASE_URL ?? '', { connectionLimit: 2 })
 const repos = createRepositories(handle.db)
 let machineId = 0
-let fieldId = 0
 
 beforeAll(async () => {
   server = await startServer()
@@ -25,7 +24,7 @@ afterAll(async () => {
   await browser?.close()
   await server?.stop()
   // The field takes its passes with it; then the machine can go.
-  if (fieldId) await repos.fields.delete(fieldId)
+  await removeMadeRecords({ repos, database: handle })
   if (machineId) await repos.machines.delete(machineId)
   await handle.close()
 })
@@ -39,7 +38,6 @@ describe('the cab view without signal', () => {
     // A machine of the test's own that the demo crew member runs, and a field with a Clear week.
     machineId = await repos.machines.insert({ name: `Cab test tractor ${Date.now().toString(36)}`, crew: crewUser.name, antennaHeightM: 3.4, rateHaPerH: null, active: true, notes: '', operatorUserId: crewUser.id })
     const field = await makeField({ repos }, { serviceLevelId: rtk.id }, farm.id, { areaHa: 8, name: `Cab test field ${Date.now().toString(36)}` })
-    fieldId = field.id
     await storeForecast({ database: handle }, field.id, hoursFromNow(-1), { [planting.id]: 'C'.repeat(6) + 'X'.repeat(4) + 'C'.repeat(60) })
 
     const { page, context } = browser

@@ -12,7 +12,7 @@ import type { Machine, WorkType } from '@shared/schemas/planning'
 import { estimateDurationMin } from '../../shared/planning/index.ts'
 import { openDatabase } from '../../server/db/index.ts'
 import { createRepositories } from '../../server/db/repositories/index.ts'
-import { hoursFromNow, makeField, storeForecast } from '../support/passes.ts'
+import { hoursFromNow, makeField, removeMadeRecords, storeForecast } from '../support/passes.ts'
 import { apiFromPage, demo, screenshot, signIn, signOut, startBrowser, startServer, waitForForecast, type RunningBrowser, type RunningServer } from './support'
 
 let server: RunningServer
@@ -290,7 +290,7 @@ describe('Passes: calendar links and the client view', () => {
       expect(moved.start).toBe(booked.suggestedStart)
       await signOut(page)
     } finally {
-      await world.repos.fields.delete(field.id)
+      await removeMadeRecords(world)
       await database.close()
     }
   }, 60_000)

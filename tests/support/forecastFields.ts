@@ -24,7 +24,8 @@ export function rectangle(lon: number, lat: number, widthM = 400, heightM = 300)
 
 /**
  * Makes sure every farm has at least `perFarm` fields (invented "Test plot" fields with a
- * tree line on their north edge); returns the ids of all fields.
+ * tree line on their north edge); returns the ids of all fields, lowest first (the
+ * demo's own fields, seeded before any test file runs, then the rest).
  */
 export async function ensureForecastFields(db: Database, perFarm: number): Promise<number[]> {
   const repos = createRepositories(db)
@@ -62,5 +63,5 @@ export async function ensureForecastFields(db: Database, perFarm: number): Promi
       })
     }
   }
-  return (await repos.fields.listAll()).map((f) => f.id)
+  return (await repos.fields.listAll()).map((f) => f.id).sort((a, b) => a - b)
 }

@@ -1,9 +1,11 @@
 // Test data for the planning API tests (passes, windows, at risk, calendar): fields,
 // machines and stored forecast hours written through the real repositories on the test
 // database, as the field editor and the forecast jobs would write them.
+import { inArray } from 'drizzle-orm'
 import { ceilHour, HOUR_MS } from '../../shared/planning/index.ts'
 import type { NewForecastHour } from '../../server/db/repositories/forecasts.ts'
 import { createRepositories } from '../../server/db/repositories/index.ts'
+import { jobs } from '../../server/db/schema-planning.ts'
 import type { Client, TestServer } from './server.ts'
 import { demo, signIn, unique } from './server.ts'
 
@@ -54,6 +56,23 @@ export async function planningWorld(server: TestServer): Promise<PlanningWorld> 
   }
 }
 
+/** Fields, machines and job rows this test file made through the helpers below. */
+const made = { fields: new Set<number>(), machines: new Set<number>(), jobs: new Set<number>() }
+
+/**
+ * Removes what the helpers of this module made in this test file (fields with their
+ * passes and stored hours by the database's cascade, machines, the helpers' job rows),
+ * so that no later file meets them. Call in afterAll, before the server closes.
+ */
+export async function removeMadeRecords(server: Pick<TestServer, 'repos' | 'database'>): Promise<void> {
+  for (const id of made.fields) await server.repos.fields.delete(id)
+  for (const id of made.machines) await server.repos.machines.delete(id)
+  if (made.jobs.size) await server.database.db.delete(jobs).where(inArray(jobs.id, [...made.jobs]))
+  made.fields.clear()
+  made.machines.clear()
+  made.jobs.clear()
+}
+
 /** A rectangular field of about `areaHa` near (latDeg, lonDeg), written through the fields repository. */
 export async function makeField(
   server: Pick<TestServer, 'repos'>,
@@ -88,6 +107,7 @@ export async function makeField(
     centroidLat: lat + dLat / 2,
     centroidLon: lon + dLon / 2,
   })
+  made.fields.add(id)
   return { id, name, areaHa }
 }
 
@@ -95,15 +115,16 @@ export async function makeField(
 export async function makeMachine(server: TestServer, rateHaPerH: number | null = null): Promise<{ id: number; name: string }> {
   const name = unique('Test tractor ')
   const id = await server.repos.machines.insert({ name, crew: 'Test crew', antennaHeightM: 3.5, rateHaPerH, active: true, notes: '' })
+  made.machines.add(id)
   return { id, name }
 }
 
-let jobCounter = Date.now()
-
 /**
  * Stores forecast hours for a field as a forecast job does (forecasts repository, one
- * transaction). `states` maps a work type id to one letter per hour from `startMs`:
- * C clear, T tight, X closed. Returns the job id used.
+ * transaction), under a finished job row of its own: the job id is a real one, so a later
+ * forecast job of the field (a higher id) replaces these hours as the product's rule says.
+ * `states` maps a work type id to one letter per hour from `startMs`: C clear, T tight,
+ * X closed. Returns the job id used.
  */
 export async function storeForecast(
   server: Pick<TestServer, 'database'>,
@@ -111,7 +132,18 @@ export async function storeForecast(
   startMs: number,
   states: Record<number, string>,
 ): Promise<number> {
-  const jobId = ++jobCounter
+  const [inserted] = await server.database.db.insert(jobs).values({
+    kind: 'forecast',
+    fieldId,
+    payloadJson: JSON.stringify({ reason: 'test' }),
+    status: 'done',
+    progress: 1,
+    attempts: 1,
+    finishedAt: new Date(),
+    resultJson: JSON.stringify({ summary: 'Hours stored by a test.' }),
+  })
+  const jobId = inserted.insertId
+  made.jobs.add(jobId)
   const hours = Math.max(...Object.values(states).map((s) => s.length))
   const rows: NewForecastHour[] = []
   for (let i = 0; i < hours; i++) {
