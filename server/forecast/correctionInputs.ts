@@ -57,6 +57,15 @@ export async function loadCorrectionInputs(store: Store, window: { startMs: numb
   }
 }
 
+/**
+ * The inputs narrowed to one window: the Kp blocks that overlap it (as loadCorrectionInputs
+ * reads them for that window), so inputs loaded once over several farms' windows give each
+ * field the same version as its own job computes.
+ */
+export function correctionsWithin(inputs: CorrectionInputs, window: { startMs: number; endMs: number }): CorrectionInputs {
+  return { ...inputs, kpBlocks: inputs.kpBlocks.filter((b) => b.endMs > window.startMs && b.startMs < window.endMs) }
+}
+
 /** The link a field uses (its choice, or the nearest reachable source). */
 export function fieldLink(field: FieldLinkInput, sources: readonly CorrectionSource[]): CorrectionLink | null {
   const chosen = field.baseStationId ? { kind: 'base' as const, id: field.baseStationId } : field.networkId ? { kind: 'network' as const, id: field.networkId } : null

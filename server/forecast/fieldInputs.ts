@@ -3,7 +3,7 @@
 // data; with the engine settings of the stored forecasts. Used by the forecast jobs (which
 // add the window and the inputs version) and by the hour detail alike, so both compute
 // from the same inputs.
-import { forecastWindow, FORECAST_WINDOW_HOURS } from '../../shared/schemas/forecast.ts'
+import { forecastWindow } from '../../shared/schemas/forecast.ts'
 import type { StoredForecastMeta } from '../db/repositories/forecasts.ts'
 import type { Repositories, Store } from '../db/repositories/index.ts'
 import { inputsVersion, type EngineSettings } from './inputs.ts'
@@ -37,11 +37,11 @@ export async function inputsOfField(store: Store, field: ForecastField, window: 
   return { field, obstructions, workTypes, orbits, terrain, correction }
 }
 
-/** A field's forecast inputs for the window at `nowMs`, with their version; null when the field is gone. */
+/** A field's forecast inputs for its farm's window at `nowMs`, with their version; null when the field is gone. */
 export async function forecastInputsOf(store: Store, fieldId: number, settings: EngineSettings, nowMs: number) {
   const field = await store.repos.forecasts.fieldWithSigma(fieldId)
   if (!field) return null
-  const window = forecastWindow(nowMs, FORECAST_WINDOW_HOURS)
+  const window = forecastWindow(nowMs, field.farmTimeZone)
   const inputs = await inputsOfField(store, field, window)
   const version = inputsVersion({
     field,

@@ -1,7 +1,10 @@
 // Job handlers by kind: 'forecast' (one field's 7-day forecast, computed on a worker
-// thread and stored in one transaction), 'nightly-refresh' (rolls every field's window
-// forward and prunes old rows) and 'orbit-feed' (fetches the configured orbit feed).
+// thread and stored in one transaction), 'nightly-refresh' (queues every field, fetches
+// the feeds and prunes old rows), 'new-day' (hourly: queues the fields of the farms whose
+// local day has turned, so each farm's week rolls at its own midnight), 'orbit-feed' and
+// 'space-weather' (fetch the configured feeds).
 import { forecastWindow } from '../../shared/schemas/forecast.ts'
+import { allFarmsWindowSpan } from '../forecast/windows.ts'
 import { withDeadlockRetry } from '../db/retry.ts'
 import { emit } from '../events.ts'
 import { engineSettings, forecastInputsOf, storedWeekIsCurrent } from '../forecast/fieldInputs.ts'
@@ -93,11 +96,12 @@ const dayOf = (ms: number) => new Date(ms).toISOString().slice(0, 10)
 
 /**
  * Fetches the orbit feed (a job of its own), queues a forecast of every field (a queued
- * one already covers its field) and prunes hours older than the window and old job rows.
+ * one already covers its field) and prunes hours older than every farm's window and old
+ * job rows.
  */
 export const nightlyRefreshHandler: JobHandler = async (ctx) => {
   const { store } = ctx
-  const window = forecastWindow(Date.now())
+  const window = await allFarmsWindowSpan(store.repos, Date.now())
   await enqueueJob(store, { kind: 'orbit-feed', dedupeKey: `orbit-feed:${dayOf(Date.now())}`, payload: { reason: 'nightly' }, maxAttempts: 4 }, 'once')
   await enqueueSpaceWeather(store)
   const pruned = await store.transaction((repos) => repos.forecasts.pruneBefore(new Date(window.startMs)))
@@ -110,9 +114,36 @@ export const nightlyRefreshHandler: JobHandler = async (ctx) => {
     ctx.progress((i + 1) / fieldList.length)
   }
   return {
-    summary: `Window rolled to ${new Date(window.startMs).toISOString().slice(0, 10)}: ${queued} field forecasts queued, ${pruned} old hours and ${prunedJobs} old jobs removed.`,
+    summary: `${queued} field forecasts queued; ${pruned} hours from before ${new Date(window.startMs).toISOString().slice(0, 16)} UTC (the earliest farm's week) and ${prunedJobs} old jobs removed.`,
     data: { queued, pruned, prunedJobs },
   }
+}
+
+/**
+ * Queues a forecast of each field whose stored week is not its farm's current window
+ * (the farm's local day turned since it was computed, or nothing is stored), farm by farm.
+ */
+export const newDayHandler: JobHandler = async (ctx) => {
+  const { store } = ctx
+  const nowMs = Date.now()
+  const zones = await store.repos.forecasts.farmZones()
+  let queued = 0
+  let farmsRolled = 0
+  for (const [farmId, zone] of zones) {
+    const window = forecastWindow(nowMs, zone)
+    const fieldList = await store.repos.forecasts.fieldIds({ farmId })
+    const meta = await store.repos.forecasts.storedMeta(fieldList.map((f) => f.id))
+    const behind = fieldList.filter((f) => {
+      const m = meta.get(f.id)
+      return !m || m.hours !== window.hours || m.firstHour?.getTime() !== window.startMs
+    })
+    if (behind.length) farmsRolled++
+    for (const f of behind) {
+      const { created } = await enqueueForecast(store, { fieldId: f.id, farmId, reason: 'new-day' }, 'reuse-pending')
+      if (created) queued++
+    }
+  }
+  return { summary: `${queued} field forecasts queued on ${farmsRolled} farms whose week moved on.`, data: { queued, farms: farmsRolled } }
 }
 
 /** Queues today's Kp feed fetch once (the nightly refresh and the start-up). */
@@ -121,5 +152,5 @@ export function enqueueSpaceWeather(store: Store) {
 }
 
 export function defaultHandlers(extra: Record<string, JobHandler> = {}): Record<string, JobHandler> {
-  return { forecast: forecastHandler, 'nightly-refresh': nightlyRefreshHandler, 'orbit-feed': orbitFeedHandler, 'space-weather': spaceWeatherHandler, ...extra }
+  return { forecast: forecastHandler, 'nightly-refresh': nightlyRefreshHandler, 'new-day': newDayHandler, 'orbit-feed': orbitFeedHandler, 'space-weather': spaceWeatherHandler, ...extra }
 }

@@ -4,7 +4,7 @@
 //   const jobs = await startJobs({ store, config, logger })   // server/index.ts
 //   ...
 //   await jobs.stop()                                           // on SIGTERM
-import { forecastWindow, FORECAST_WINDOW_HOURS } from '../../shared/schemas/forecast.ts'
+import { forecastWindow, windowSpan } from '../../shared/schemas/forecast.ts'
 import type { Config } from '../config.ts'
 import type { Store } from '../db/repositories/index.ts'
 import type { Logger } from '../logger.ts'
@@ -12,7 +12,7 @@ import { enqueueForecast, enqueueJob } from '../queue/enqueue.ts'
 import { EnginePool } from './enginePool.ts'
 import { engineSettings, storedWeekIsCurrent } from '../forecast/fieldInputs.ts'
 import { defaultHandlers, enqueueSpaceWeather } from './handlers.ts'
-import { fieldCorrection, loadCorrectionInputs } from '../forecast/correctionInputs.ts'
+import { correctionsWithin, fieldCorrection, loadCorrectionInputs } from '../forecast/correctionInputs.ts'
 import { inputsVersion } from '../forecast/inputs.ts'
 import { loadOrbitInputs } from '../forecast/orbitInputs.ts'
 import { JobRunner, type JobHandler } from './runner.ts'
@@ -28,18 +28,20 @@ export interface JobsHandle {
 }
 
 /**
- * Fields whose stored forecast is missing, incomplete, from another window or from other
- * inputs (a different version), queued for a recompute (a queued job already covers a field).
+ * Fields whose stored forecast is missing, incomplete, from another window (their farm's
+ * local week) or from other inputs (a different version), queued for a recompute (a
+ * queued job already covers a field).
  */
 export async function stalenessSweep(store: Store, config: Config, nowMs = Date.now()): Promise<{ checked: number; queued: number }> {
   const settings = engineSettings(config)
-  const window = forecastWindow(nowMs, FORECAST_WINDOW_HOURS)
+  const zones = await store.repos.forecasts.farmZones()
   const farmIds = [...new Set((await store.repos.forecasts.fieldIds()).map((f) => f.farmId))]
-  if (farmIds.length === 0) return { checked: 0, queued: 0 }
+  const span = windowSpan(nowMs, farmIds.map((id) => zones.get(id)!))
+  if (!span) return { checked: 0, queued: 0 }
   const [workTypes, orbits, corrections] = await Promise.all([
     store.repos.forecasts.activeWorkTypes(),
     loadOrbitInputs(store),
-    loadCorrectionInputs(store, window),
+    loadCorrectionInputs(store, span),
   ])
   let checked = 0
   let queued = 0
@@ -50,6 +52,8 @@ export async function stalenessSweep(store: Store, config: Config, nowMs = Date.
       store.repos.forecasts.obstructionsOfFarm(farmId),
       store.repos.forecasts.storedMeta(fields.map((f) => f.id)),
     ])
+    const window = forecastWindow(nowMs, zones.get(farmId)!)
+    const farmCorrections = correctionsWithin(corrections, window)
     for (const field of fields) {
       checked++
       const version = inputsVersion({
@@ -62,7 +66,7 @@ export async function stalenessSweep(store: Store, config: Config, nowMs = Date.
         windowHours: window.hours,
         settings,
         terrain: terrainVersionOf(await terrainOfField(store.repos, field)),
-        correction: fieldCorrection(field, workTypes, corrections).version,
+        correction: fieldCorrection(field, workTypes, farmCorrections).version,
       })
       if (storedWeekIsCurrent(meta.get(field.id), window, version)) continue
       const { created } = await enqueueForecast(store, { fieldId: field.id, farmId: field.farmId, reason: 'start-up' }, 'reuse-pending')
@@ -94,6 +98,31 @@ export function enqueueNightly(store: Store, now = new Date()) {
   return enqueueJob(store, { kind: 'nightly-refresh', dedupeKey: nightlyKey(now), payload: { reason: 'nightly' } }, 'once')
 }
 
+/** The UTC hour a new-day check belongs to: its dedupe key. */
+export const newDayKey = (nowMs = Date.now()) => `new-day:${new Date(nowMs).toISOString().slice(0, 13)}`
+
+/** Queues this hour's new-day check once, whichever process asks first. */
+export function enqueueNewDay(store: Store, nowMs = Date.now()) {
+  return enqueueJob(store, { kind: 'new-day', dedupeKey: newDayKey(nowMs), payload: { reason: 'new-day' } }, 'once')
+}
+
+/** Milliseconds from `nowMs` to a few seconds past the next full UTC hour (every zone's midnight is on or near one). */
+export const msUntilNextHour = (nowMs = Date.now()) => 3_600_000 - (nowMs % 3_600_000) + 5_000
+
+/** Runs `action` after `delay()` ms, again and again; returns a function that stops it. */
+function repeat(delay: () => number, action: () => Promise<unknown>, what: string, logger: Logger): () => void {
+  let timer: NodeJS.Timeout | undefined
+  const schedule = () => {
+    timer = setTimeout(() => {
+      void action().catch((error) => logger.warn(`could not queue ${what}`, error))
+      schedule()
+    }, delay())
+    timer.unref()
+  }
+  schedule()
+  return () => clearTimeout(timer)
+}
+
 export async function startJobs(deps: {
   store: Store
   config: Config
@@ -122,21 +151,19 @@ export async function startJobs(deps: {
       logger.warn('the start-up forecast check failed', error)
     }
   }
-  let nightlyTimer: NodeJS.Timeout | undefined
-  const scheduleNightly = () => {
-    nightlyTimer = setTimeout(() => {
-      void enqueueNightly(store).catch((error) => logger.warn('could not queue the nightly refresh', error))
-      scheduleNightly()
-    }, msUntilLocalTime(config.nightlyRefreshTime) + 1_000)
-    nightlyTimer.unref()
-  }
-  scheduleNightly()
+  // The nightly refresh at the configured server-local time; and, since each farm's week
+  // starts at its own local midnight, an hourly check that queues the fields of the farms
+  // whose day has turned.
+  const timers = [
+    repeat(() => msUntilLocalTime(config.nightlyRefreshTime) + 1_000, () => enqueueNightly(store), 'the nightly refresh', logger),
+    repeat(() => msUntilNextHour(), () => enqueueNewDay(store), 'the new-day check', logger),
+  ]
   return {
     runner,
     pool,
     sweep,
     stop: async () => {
-      clearTimeout(nightlyTimer)
+      for (const stopTimer of timers) stopTimer()
       offTriggers()
       await runner.stop()
       await pool.close()

@@ -1,7 +1,7 @@
 // What queues forecast recomputes: domain events after a change has been committed.
 // A crash between the change and the enqueue is caught by the start-up staleness sweep
 // (the stored inputs version no longer matches).
-import { forecastWindow } from '../../shared/schemas/forecast.ts'
+import { allFarmsWindowSpan } from '../forecast/windows.ts'
 import type { JobReason } from '../../shared/schemas/jobs.ts'
 import type { Store } from '../db/repositories/index.ts'
 import { on } from '../events.ts'
@@ -19,10 +19,13 @@ async function enqueueAll(store: Store, list: Array<{ id: number; farmId: number
   return n
 }
 
-/** Fields an outage over [fromMs, toMs) can affect: those whose stored or current window overlaps it. */
+/**
+ * Fields an outage over [fromMs, toMs) can affect: those whose stored or current window
+ * overlaps it (every field when it overlaps any farm's current week).
+ */
 export async function fieldsForOutage(store: Store, fromMs: number, toMs: number, nowMs = Date.now()) {
   const all = await store.repos.forecasts.fieldIds()
-  const current = forecastWindow(nowMs)
+  const current = await allFarmsWindowSpan(store.repos, nowMs)
   if (fromMs < current.endMs && toMs > current.startMs) return all
   const meta = await store.repos.forecasts.storedMeta()
   return all.filter((f) => {

@@ -6,7 +6,6 @@ import { gzip as zlibGzip } from 'node:zlib'
 import type { SessionUser } from '../../shared/schemas/auth.ts'
 import {
   forecastWindow,
-  FORECAST_WINDOW_HOURS,
   type FarmForecastResponse,
   type FieldForecastResponse,
   type ForecastHour,
@@ -21,11 +20,19 @@ import type { ServiceContext } from './context.ts'
 
 const HOUR_MS = 3_600_000
 
-/** Whether stored hours may not match the current inputs (see FieldForecastResponse.stale). */
-export function isStale(meta: StoredForecastMeta | undefined, pending: PendingForecastJob | JobRow | null | undefined, nowMs: number): boolean {
+/**
+ * Whether stored hours may not match the current inputs (see FieldForecastResponse.stale):
+ * a job pending, nothing stored, or not the farm's current week (`zone`) in one piece.
+ */
+export function isStale(
+  meta: StoredForecastMeta | undefined,
+  pending: PendingForecastJob | JobRow | null | undefined,
+  nowMs: number,
+  zone: string,
+): boolean {
   if (pending) return true
   if (!meta || !meta.firstHour) return true
-  const window = forecastWindow(nowMs, FORECAST_WINDOW_HOURS)
+  const window = forecastWindow(nowMs, zone)
   return meta.hours !== window.hours || meta.firstHour.getTime() !== window.startMs || meta.minVersion !== meta.maxVersion
 }
 
@@ -115,8 +122,8 @@ export function createForecastsService(ctx: ServiceContext) {
     return all.filter((w) => used.has(String(w.id)) || (used.size === 0 && w.active)).map((w) => ({ id: w.id, name: w.name }))
   }
 
-  function range(query: ForecastQuery, meta: StoredForecastMeta | undefined, nowMs: number): { from: Date; to: Date } {
-    const window = forecastWindow(nowMs)
+  function range(query: ForecastQuery, meta: StoredForecastMeta | undefined, nowMs: number, zone: string): { from: Date; to: Date } {
+    const window = forecastWindow(nowMs, zone)
     const from = query.from ?? meta?.firstHour ?? new Date(window.startMs)
     const to = query.to ?? (meta?.lastHour ? new Date(meta.lastHour.getTime() + HOUR_MS) : new Date(window.endMs))
     return { from, to }
@@ -127,6 +134,7 @@ export function createForecastsService(ctx: ServiceContext) {
     meta: StoredForecastMeta | undefined,
     pending: PendingForecastJob | JobRow | null | undefined,
     nowMs: number,
+    zone: string,
   ): Omit<FieldForecastResponse, 'workTypes' | 'hours'> {
     return {
       fieldId: field.id,
@@ -136,7 +144,7 @@ export function createForecastsService(ctx: ServiceContext) {
       computedAt: meta?.computedAt?.toISOString() ?? null,
       windowStart: meta?.firstHour?.toISOString() ?? null,
       windowEnd: meta?.lastHour ? new Date(meta.lastHour.getTime() + HOUR_MS).toISOString() : null,
-      stale: isStale(meta, pending, nowMs),
+      stale: isStale(meta, pending, nowMs, zone),
       pendingJob: pending ? { id: pending.id, status: pending.status as 'queued' | 'running', progress: pending.progress } : null,
       orbitSummary: meta?.orbitSummary ?? '',
     }
@@ -152,13 +160,13 @@ export function createForecastsService(ctx: ServiceContext) {
     // One lookup first: nothing more is read before the visibility check.
     const state = await store.repos.forecasts.readState(fieldId)
     if (!state || !canSeeFarm(user, state.field.farmId)) throw notFound('The field')
-    const { field, meta, pending } = state
-    const { from, to } = range(query, meta, nowMs)
+    const { field, meta, pending, timeZone } = state
+    const { from, to } = range(query, meta, nowMs, timeZone)
     const [hours, allWorkTypes] = await Promise.all([
       hoursOf(fieldId, meta, from, to),
       workTypesCache.get('all', state.workTypesStamp, () => store.repos.workTypes.list()),
     ])
-    const head = { ...assemble(field, meta, pending, nowMs), workTypes: namesFor(hours.usedWorkTypes, allWorkTypes) }
+    const head = { ...assemble(field, meta, pending, nowMs, timeZone), workTypes: namesFor(hours.usedWorkTypes, allWorkTypes) }
     return { head, hours }
   }
 
@@ -177,7 +185,8 @@ export function createForecastsService(ctx: ServiceContext) {
     },
 
     async farm(user: SessionUser, farmId: number, query: ForecastQuery): Promise<FarmForecastResponse> {
-      if (!canSeeFarm(user, farmId) || !(await store.repos.farms.findById(farmId))) throw notFound('The farm')
+      const farm = canSeeFarm(user, farmId) ? await store.repos.farms.findById(farmId) : null
+      if (!farm) throw notFound('The farm')
       const nowMs = Date.now()
       const fields = await store.repos.forecasts.fieldsOfFarm(farmId)
       const ids = fields.map((f) => f.id)
@@ -185,7 +194,7 @@ export function createForecastsService(ctx: ServiceContext) {
         store.repos.forecasts.storedMeta(ids),
         store.repos.jobs.pendingForFields(ids),
       ])
-      const window = forecastWindow(nowMs)
+      const window = forecastWindow(nowMs, farm.timeZone)
       const from = query.from ?? new Date(window.startMs)
       const to = query.to ?? new Date(window.endMs)
       const rows = await store.repos.forecasts.hours(ids, from, to)
@@ -196,7 +205,7 @@ export function createForecastsService(ctx: ServiceContext) {
         farmId,
         from: from.toISOString(),
         to: to.toISOString(),
-        fields: fields.map((f) => ({ ...assemble(f, metaMap.get(f.id), pendingMap.get(f.id), nowMs), hours: byField.get(f.id) ?? [] })),
+        fields: fields.map((f) => ({ ...assemble(f, metaMap.get(f.id), pendingMap.get(f.id), nowMs, farm.timeZone), hours: byField.get(f.id) ?? [] })),
         workTypes: namesFor(usedWorkTypes(all), await store.repos.workTypes.list()),
       }
     },

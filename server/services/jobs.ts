@@ -2,7 +2,7 @@
 // manual recompute of a field's forecast.
 import type { SessionUser } from '../../shared/schemas/auth.ts'
 import { jobKinds, type Job, type JobList, type JobListQuery, type JobSummary, type StorageReport } from '../../shared/schemas/jobs.ts'
-import { forecastWindow } from '../../shared/schemas/forecast.ts'
+import { allFarmsWindowSpan } from '../forecast/windows.ts'
 import { assertFarmVisible } from '../auth/access.ts'
 import type { JobListRow } from '../db/repositories/jobs.ts'
 import type { JobRow } from '../db/schema-planning.ts'
@@ -76,7 +76,7 @@ export function createJobsService(ctx: ServiceContext) {
         tables,
         totalBytes: tables.reduce((sum, t) => sum + t.dataBytes + t.indexBytes, 0),
         jobRetentionDays: FINISHED_JOB_RETENTION_DAYS,
-        windowStart: new Date(forecastWindow(Date.now()).startMs).toISOString(),
+        windowStart: new Date((await allFarmsWindowSpan(store.repos, Date.now())).startMs).toISOString(),
       }
     },
 

@@ -1,25 +1,55 @@
+import { DateTime } from 'luxon'
 import { z } from 'zod'
 import { hourStates } from './planning'
 
 // Stored field forecasts: one row per field per UTC hour, replaced whole by each forecast
 // job. GET /api/fields/:id/forecast?from&to and GET /api/farms/:id/forecast?from&to.
 
-/** Hours in the forecast window (7 days). */
-export const FORECAST_WINDOW_HOURS = 168
+/** Local days in the forecast window. */
+export const FORECAST_WINDOW_DAYS = 7
+/** Hours in the forecast window on a week without a daylight-saving change (7 x 24). */
+export const FORECAST_WINDOW_HOURS = FORECAST_WINDOW_DAYS * 24
 const HOUR_MS = 3_600_000
 const DAY_MS = 24 * HOUR_MS
 
+/** A forecast window: [startMs, endMs) and the number of UTC hours in it. */
+export interface ForecastWindow {
+  startMs: number
+  endMs: number
+  hours: number
+}
+
 /**
- * The forecast window at `nowMs`: 168 hours from 00:00 UTC of the current UTC day. Every
- * field shares it; the nightly refresh rolls it forward.
+ * A farm's forecast window at `nowMs`: from 00:00 local time of today in the farm's IANA
+ * zone through the end of the seventh local day. The stored week is these whole UTC
+ * hours: 168 on most weeks, 167 on a week with the spring-forward day and 169 with the
+ * fall-back day (in a half-hour zone the hours that start within the days). The nightly
+ * refresh and the hourly new-day check roll it forward at each farm's own midnight.
  *
  * @example
- * forecastWindow(Date.UTC(2026, 11, 2, 15, 30))
- * // -> { startMs: Date.UTC(2026, 11, 2), endMs: Date.UTC(2026, 11, 9), hours: 168 }
+ * forecastWindow(Date.UTC(2026, 11, 3, 15, 30), 'America/Chicago')
+ * // -> { startMs: Date.UTC(2026, 11, 3, 6), endMs: Date.UTC(2026, 11, 10, 6), hours: 168 }
+ * forecastWindow(Date.UTC(2026, 10, 1, 12), 'America/Chicago').hours // -> 169 (1 Nov, clocks go back)
  */
-export function forecastWindow(nowMs: number, hours = FORECAST_WINDOW_HOURS): { startMs: number; endMs: number; hours: number } {
-  const startMs = Math.floor(nowMs / DAY_MS) * DAY_MS
-  return { startMs, endMs: startMs + hours * HOUR_MS, hours }
+export function forecastWindow(nowMs: number, zone: string, days = FORECAST_WINDOW_DAYS): ForecastWindow {
+  const today = DateTime.fromMillis(nowMs, { zone }).startOf('day')
+  if (!today.isValid) throw new Error(`Unknown time zone: ${zone}`)
+  const startMs = Math.ceil(today.toMillis() / HOUR_MS) * HOUR_MS
+  const endMs = Math.ceil(today.plus({ days }).toMillis() / HOUR_MS) * HOUR_MS
+  return { startMs, endMs, hours: (endMs - startMs) / HOUR_MS }
+}
+
+/**
+ * The span that the windows of all these zones cover at `nowMs` (earliest start, latest
+ * end): what a question about "any farm's current week" reads, and what pruning keeps.
+ */
+export function windowSpan(nowMs: number, zones: Iterable<string>): { startMs: number; endMs: number } | null {
+  let span: { startMs: number; endMs: number } | null = null
+  for (const zone of new Set(zones)) {
+    const w = forecastWindow(nowMs, zone)
+    span = span ? { startMs: Math.min(span.startMs, w.startMs), endMs: Math.max(span.endMs, w.endMs) } : { startMs: w.startMs, endMs: w.endMs }
+  }
+  return span
 }
 
 const isoTime = (name: string) =>

@@ -7,7 +7,7 @@ import { z } from 'zod'
 export const jobStatuses = ['queued', 'running', 'done', 'failed', 'superseded'] as const
 export type JobStatus = (typeof jobStatuses)[number]
 
-export const jobKinds = ['forecast', 'nightly-refresh', 'orbit-feed', 'space-weather'] as const
+export const jobKinds = ['forecast', 'nightly-refresh', 'new-day', 'orbit-feed', 'space-weather'] as const
 export type JobKind = (typeof jobKinds)[number]
 
 /** Why a forecast job was queued (shown in the Jobs list). */
@@ -20,6 +20,7 @@ export const jobReasons = [
   'outages',
   'planning',
   'nightly',
+  'new-day',
   'start-up',
 ] as const
 export type JobReason = (typeof jobReasons)[number]

@@ -2,14 +2,15 @@
 // database: a recompute stores exactly the window's hours with a state per work type, a
 // tree line's new height queues and stores a new version, clients read only their farms,
 // and bad ranges are refused naming the parameter.
+import { DateTime } from 'luxon'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { forecastWindow, type FarmForecastResponse, type FieldForecastResponse } from '../../shared/schemas/forecast.ts'
+import { type FarmForecastResponse, type FieldForecastResponse } from '../../shared/schemas/forecast.ts'
 import type { Job } from '../../shared/schemas/jobs.ts'
 import { createStore } from '../../server/db/repositories/index.ts'
 import { clearListeners } from '../../server/events.ts'
 import { startJobs, type JobsHandle } from '../../server/jobs/index.ts'
 import { createLogger } from '../../server/logger.ts'
-import { ensureForecastFields } from '../support/forecastFields.ts'
+import { ensureForecastFields, fieldWindow } from '../support/forecastFields.ts'
 import { demo, signIn, startTestServer, type Client, type TestServer } from '../support/server.ts'
 
 let server: TestServer
@@ -66,15 +67,24 @@ describe('recompute and read a field forecast', () => {
     const done = (await as.office.get(`/api/jobs?fieldId=${northField.id}&limit=5`)).body.items.find((j: Job) => j.id === job.id) as Job
     expect(done.status).toBe('done')
     expect(done.progress).toBe(1)
-    expect(done.result).toMatch(/^168 hours stored/)
+    const window = await fieldWindow(server.database.db, northField.id)
+    expect(done.result).toMatch(new RegExp(`^${window.hours} hours stored`))
 
     const fc = (await as.clientNorth.get(`/api/fields/${northField.id}/forecast`)).body as FieldForecastResponse
-    const window = forecastWindow(Date.now())
-    expect(fc.hours).toHaveLength(168)
+    expect(fc.hours).toHaveLength(window.hours)
     expect(fc.windowStart).toBe(new Date(window.startMs).toISOString())
     expect(fc.windowEnd).toBe(new Date(window.endMs).toISOString())
     expect(fc.hours[0].time).toBe(fc.windowStart)
-    expect(new Set(fc.hours.map((h) => h.time)).size).toBe(168)
+    expect(new Set(fc.hours.map((h) => h.time)).size).toBe(window.hours)
+    // The farm's own days: from 00:00 today to 00:00 seven days on, on the farm's clock
+    // (luxon's reading of the IANA zone; 167 or 169 hours over a daylight-saving change).
+    const zone = (await as.clientNorth.get(`/api/farms/${northField.farmId}`)).body.timeZone as string
+    const first = DateTime.fromISO(fc.windowStart!, { zone })
+    const end = DateTime.fromISO(fc.windowEnd!, { zone })
+    expect(first.toFormat('HH:mm')).toBe('00:00')
+    expect(first.toISODate()).toBe(DateTime.now().setZone(zone).toISODate())
+    expect(end.toFormat('HH:mm')).toBe('00:00')
+    expect(end.diff(first, 'days').days).toBeCloseTo(7, 1)
     expect(fc.stale).toBe(false)
     expect(fc.pendingJob).toBeNull()
     expect(fc.inputsVersion).toMatch(/^[0-9a-f]{64}$/)
@@ -98,7 +108,7 @@ describe('recompute and read a field forecast', () => {
   })
 
   it('answers a range inside the window, and refuses bad ranges naming the parameter', async () => {
-    const window = forecastWindow(Date.now())
+    const window = await fieldWindow(server.database.db, northField.id)
     const from = new Date(window.startMs + 24 * 3_600_000).toISOString()
     const to = new Date(window.startMs + 30 * 3_600_000).toISOString()
     const part = (await as.admin.get(`/api/fields/${northField.id}/forecast?from=${from}&to=${to}`)).body as FieldForecastResponse
@@ -122,7 +132,7 @@ describe('recompute and read a field forecast', () => {
     expect(again.status).toBe(304)
     expect(again.text ?? '').toBe('')
     // Another range is another body.
-    const window = forecastWindow(Date.now())
+    const window = await fieldWindow(server.database.db, northField.id)
     const part = await as.clientNorth
       .get(`/api/fields/${northField.id}/forecast?from=${new Date(window.startMs).toISOString()}&to=${new Date(window.startMs + 3_600_000).toISOString()}`)
       .set('If-None-Match', etag)
@@ -140,7 +150,7 @@ describe('recompute and read a field forecast', () => {
   })
 
   it('gives a farm day view of all its fields', async () => {
-    const window = forecastWindow(Date.now())
+    const window = await fieldWindow(server.database.db, northField.id)
     const from = new Date(window.startMs).toISOString()
     const to = new Date(window.startMs + 24 * 3_600_000).toISOString()
     const res = await as.clientNorth.get(`/api/farms/${northField.farmId}/forecast?from=${from}&to=${to}`)

@@ -6,7 +6,6 @@ import { spawn, type ChildProcess } from 'node:child_process'
 import { join } from 'node:path'
 import { and, inArray } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { forecastWindow } from '../../shared/schemas/forecast.ts'
 import type { Job } from '../../shared/schemas/jobs.ts'
 import { openDatabase, type DatabaseHandle } from '../../server/db/index.ts'
 import { runMigrations } from '../../server/db/migrate.ts'
@@ -14,7 +13,7 @@ import { createRepositories } from '../../server/db/repositories/index.ts'
 import { jobs } from '../../server/db/schema-planning.ts'
 import { seedDemo } from '../../seed/index.ts'
 import { freePort, root } from '../e2e/support.ts'
-import { ensureForecastFields } from '../support/forecastFields.ts'
+import { ensureForecastFields, fieldWindow } from '../support/forecastFields.ts'
 import { demo, DEMO_PASSWORD } from '../support/server.ts'
 
 let db: DatabaseHandle
@@ -170,9 +169,10 @@ describe('restart safety', () => {
     expect(await db.db.select().from(jobs).where(and(inArray(jobs.id, ids), inArray(jobs.status, ['running', 'queued'])))).toEqual([])
 
     // Exactly the window's hours per field, consecutive, one inputs version, from the last job.
-    const window = forecastWindow(Date.now())
     const meta = await repos.forecasts.storedMeta(fieldIds)
     for (const id of fieldIds) {
+      // The week of the field's farm: its local days.
+      const window = await fieldWindow(db.db, id)
       const m = meta.get(id)!
       expect(m.hours, `hours of field ${id}`).toBe(window.hours)
       expect(m.firstHour?.getTime()).toBe(window.startMs)
@@ -185,7 +185,8 @@ describe('restart safety', () => {
       // test, or a later background recompute of the same field. A server's start-up check
       // runs while the runner already claims jobs, and queues a field again when its only
       // job is running (a running job may have read older inputs), so a later 'start-up'
-      // job can legitimately write the same week after ours.
+      // job can legitimately write the same week after ours (as can the hourly new-day
+      // check's job when a farm's midnight passes during the test).
       const job = queued.find((j) => j.fieldId === id)!
       const writers = [...new Set(hours.map((h) => h.jobId))]
       expect(writers, `jobs that wrote field ${id}`).toHaveLength(1)
@@ -193,7 +194,7 @@ describe('restart safety', () => {
         const [writer] = await db.db.select().from(jobs).where(inArray(jobs.id, writers as number[]))
         expect(writer.id).toBeGreaterThan(job.id)
         expect([writer.kind, writer.fieldId, writer.status]).toEqual(['forecast', id, 'done'])
-        expect(['start-up', 'nightly']).toContain((JSON.parse(writer.payloadJson) as { reason: string }).reason)
+        expect(['start-up', 'nightly', 'new-day']).toContain((JSON.parse(writer.payloadJson) as { reason: string }).reason)
       }
     }
     // No job of the fields ran to completion twice: one 'done' row per job id, and every

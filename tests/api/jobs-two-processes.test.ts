@@ -7,7 +7,6 @@
 // hours, all from its job of this test.
 import { and, inArray } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { forecastWindow } from '../../shared/schemas/forecast.ts'
 import type { Job } from '../../shared/schemas/jobs.ts'
 import { openDatabase, type DatabaseHandle } from '../../server/db/index.ts'
 import { runMigrations } from '../../server/db/migrate.ts'
@@ -15,7 +14,7 @@ import { createRepositories } from '../../server/db/repositories/index.ts'
 import { jobs } from '../../server/db/schema-planning.ts'
 import { seedDemo } from '../../seed/index.ts'
 import { freePort } from '../e2e/support.ts'
-import { ensureForecastFields } from '../support/forecastFields.ts'
+import { ensureForecastFields, fieldWindow } from '../support/forecastFields.ts'
 import { demo, DEMO_PASSWORD } from '../support/server.ts'
 import { groupPids, startServer, type ServerProcess } from '../support/serverProcess.ts'
 
@@ -130,9 +129,9 @@ describe('two job processes and a page process', () => {
     for (const [id, pids] of holders) for (const pid of pids) expect(webPids.has(pid), `job ${id} ran on the page process`).toBe(false)
     expect(await db.db.select().from(jobs).where(and(inArray(jobs.id, ids), inArray(jobs.status, ['running', 'queued'])))).toEqual([])
 
-    const window = forecastWindow(Date.now())
     const meta = await repos.forecasts.storedMeta(fieldIds)
     for (const id of fieldIds) {
+      const window = await fieldWindow(db.db, id)
       const m = meta.get(id)!
       expect(m.hours, `hours of field ${id}`).toBe(window.hours)
       expect(m.minVersion).toBe(m.maxVersion)

@@ -9,7 +9,6 @@ import { inArray } from 'drizzle-orm'
 import { drizzle } from 'drizzle-orm/mysql2'
 import mysql from 'mysql2/promise'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { forecastWindow } from '../../shared/schemas/forecast.ts'
 import { nominalConstellation } from '../../shared/precision/index.ts'
 import { openDatabase, type DatabaseHandle } from '../../server/db/index.ts'
 import { runMigrations } from '../../server/db/migrate.ts'
@@ -35,7 +34,8 @@ const farmIds: number[] = []
 let farmId = 0
 const fieldIds: number[] = []
 const jobIds: number[] = []
-const window = forecastWindow(Date.now(), HOURS)
+const windowStartMs = Math.floor(Date.now() / 86_400_000) * 86_400_000
+const window = { startMs: windowStartMs, endMs: windowStartMs + HOURS * 3_600_000, hours: HOURS }
 
 /** Repositories whose every statement is recorded (SQL with its parameters filled in). */
 function recordingRepos() {

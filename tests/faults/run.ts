@@ -312,13 +312,21 @@ async function lostJobs(db: DatabaseHandle, ids: number[]): Promise<number> {
   return lost + (ids.length - rows.length)
 }
 
-/** One current week per field: the window's hours, one inputs version, one writing job. */
+/** The window start of every farm at `nowMs`, as one text (it changes when any farm's day turns). */
+async function farmWeekStarts(repos: Repositories, nowMs: number): Promise<string> {
+  return [...(await repos.forecasts.farmZones()).values()].map((zone) => forecastWindow(nowMs, zone).startMs).join(',')
+}
+
+/** One current week per field (its farm's local week): the window's hours, one inputs version, one writing job. */
 async function weekChecks(db: DatabaseHandle, repos: Repositories, fieldIds: number[]) {
-  const window = forecastWindow(Date.now())
+  const nowMs = Date.now()
   const meta = await repos.forecasts.storedMeta(fieldIds)
+  const zones = await repos.forecasts.farmZones()
+  const farmOf = new Map((await repos.forecasts.fieldIds()).map((f) => [f.id, f.farmId]))
   let ok = 0
   let twoWriters = 0
   for (const id of fieldIds) {
+    const window = forecastWindow(nowMs, zones.get(farmOf.get(id)!)!)
     const m = meta.get(id)
     const writers = await db.db.selectDistinct({ jobId: forecastHours.jobId }).from(forecastHours).where(eq(forecastHours.fieldId, id))
     if (writers.length > 1) twoWriters++
@@ -327,13 +335,14 @@ async function weekChecks(db: DatabaseHandle, repos: Repositories, fieldIds: num
   const [dups] = (await db.db.execute(
     sql`SELECT COUNT(*) AS n FROM (SELECT field_id, hour_start FROM forecast_hours GROUP BY field_id, hour_start HAVING COUNT(*) > 1) d`,
   )) as unknown as [Array<{ n: number }>]
-  return { ok, twoWriters, duplicates: Number(dups[0]?.n ?? 0), windowStartMs: window.startMs }
+  return { ok, twoWriters, duplicates: Number(dups[0]?.n ?? 0) }
 }
 
 // ---- the phases ---------------------------------------------------------------------------
 
 async function killPhase(o: FaultOptions, db: DatabaseHandle, repos: Repositories, url: string, smtpUrl: string, figures: FaultFigures) {
   const started = Date.now()
+  const weekStarts = await farmWeekStarts(repos, started)
   const rand = random(o.seed)
   const fieldIds = (await repos.forecasts.fieldIds()).map((f) => f.id)
   let server = await startServer(url, smtpUrl)
@@ -358,8 +367,8 @@ async function killPhase(o: FaultOptions, db: DatabaseHandle, repos: Repositorie
     await api.signIn(OFFICE)
   }
   await until('every forecast job to finish', async () => (await openJobs(db)).length === 0, 900_000, 250)
-  // The hour may have turned meanwhile: a start-up check moves every field to the new week.
-  if (forecastWindow(Date.now()).startMs !== forecastWindow(started).startMs) {
+  // A farm's day may have turned meanwhile: a start-up check moves its fields to the new week.
+  if ((await farmWeekStarts(repos, Date.now())) !== weekStarts) {
     await stopCleanly(server)
     server = await startServer(url, smtpUrl)
     await until('the new week', async () => (await openJobs(db)).length === 0, 900_000, 250)

@@ -1,6 +1,7 @@
 // Invented test fields for the forecast job tests and the server benchmark: rectangles of
 // farmland near the demo farms, each with a tree line along one edge. Written through the
 // repositories, only when a farm has fewer fields than asked for.
+import { forecastWindow } from '../../shared/schemas/forecast.ts'
 import type { Database } from '../../server/db/index.ts'
 import { createRepositories } from '../../server/db/repositories/index.ts'
 
@@ -64,4 +65,11 @@ export async function ensureForecastFields(db: Database, perFarm: number): Promi
     }
   }
   return (await repos.fields.listAll()).map((f) => f.id).sort((a, b) => a - b)
+}
+
+/** The forecast window of a field's farm (its local week) at `nowMs`. */
+export async function fieldWindow(db: Database, fieldId: number, nowMs = Date.now()) {
+  const field = await createRepositories(db).forecasts.fieldWithSigma(fieldId)
+  if (!field) throw new Error(`field ${fieldId} is gone`)
+  return forecastWindow(nowMs, field.farmTimeZone)
 }

@@ -41,6 +41,8 @@ export interface PendingForecastJob {
 
 export interface FieldReadState {
   field: { id: number; name: string; farmId: number }
+  /** the farm's IANA time zone (its forecast window) */
+  timeZone: string
   meta: StoredForecastMeta | undefined
   pending: PendingForecastJob | null
   workTypesStamp: string
@@ -51,6 +53,7 @@ interface RawReadState {
   id: number
   name: string
   farmId: number
+  timeZone: string
   hours: number | null
   /** DATETIME values come as text ('YYYY-MM-DD hh:mm:ss.fff', UTC) through Drizzle's connection */
   firstHour: string | null
@@ -105,16 +108,16 @@ async function summarize(db: DbOrTx, fieldIds: number[]): Promise<void> {
 
 export function forecastsRepository(db: DbOrTx) {
   return {
-    /** The field with the sigma of its service level, or null. */
-    async fieldWithSigma(fieldId: number): Promise<(FieldRow & { sigmaUereM: number; farmName: string }) | null> {
+    /** The field with the sigma of its service level and its farm's name and time zone, or null. */
+    async fieldWithSigma(fieldId: number): Promise<(FieldRow & { sigmaUereM: number; farmName: string; farmTimeZone: string }) | null> {
       const [row] = await db
-        .select({ field: fields, sigmaUereM: serviceLevels.sigmaUereM, farmName: farms.name })
+        .select({ field: fields, sigmaUereM: serviceLevels.sigmaUereM, farmName: farms.name, farmTimeZone: farms.timeZone })
         .from(fields)
         .innerJoin(serviceLevels, eq(serviceLevels.id, fields.serviceLevelId))
         .innerJoin(farms, eq(farms.id, fields.farmId))
         .where(eq(fields.id, fieldId))
         .limit(1)
-      return row ? { ...row.field, sigmaUereM: row.sigmaUereM, farmName: row.farmName } : null
+      return row ? { ...row.field, sigmaUereM: row.sigmaUereM, farmName: row.farmName, farmTimeZone: row.farmTimeZone } : null
     },
 
     async obstructionsOfFarm(farmId: number): Promise<ObstructionRow[]> {
@@ -141,6 +144,12 @@ export function forecastsRepository(db: DbOrTx) {
         .where(farmId === undefined ? undefined : eq(fields.farmId, farmId))
         .orderBy(asc(fields.id))
       return rows.map((r) => ({ ...r.field, sigmaUereM: r.sigmaUereM }))
+    },
+
+    /** Every farm's IANA time zone by farm id (the farms' forecast windows). */
+    async farmZones(): Promise<Map<number, string>> {
+      const rows = await db.select({ id: farms.id, timeZone: farms.timeZone }).from(farms)
+      return new Map(rows.map((r) => [r.id, r.timeZone]))
     },
 
     /** Ids (and farms) of fields: all, of a farm, or using some service levels. */
@@ -182,19 +191,20 @@ export function forecastsRepository(db: DbOrTx) {
      */
     async readState(fieldId: number): Promise<FieldReadState | null> {
       const [rows] = (await db.execute(sql`
-        SELECT f.id, f.name, f.farm_id AS farmId,
+        SELECT f.id, f.name, f.farm_id AS farmId, fa.time_zone AS timeZone,
           s.hours, s.first_hour AS firstHour, s.last_hour AS lastHour, s.min_version AS minVersion,
           s.max_version AS maxVersion, s.computed_at AS computedAt, s.orbit_summary AS orbitSummary, s.max_job_id AS maxJobId,
           (SELECT JSON_OBJECT('id', j.id, 'status', j.status, 'progress', j.progress) FROM jobs j
             WHERE j.field_id = f.id AND j.kind = 'forecast' AND j.status IN ('queued', 'running')
             ORDER BY j.status = 'running' DESC, j.id DESC LIMIT 1) AS pending,
           (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(w.id), 0), '/', COALESCE(MAX(w.updated_at), '')) FROM work_types w) AS workTypesStamp
-        FROM fields f LEFT JOIN field_forecasts s ON s.field_id = f.id
+        FROM fields f JOIN farms fa ON fa.id = f.farm_id LEFT JOIN field_forecasts s ON s.field_id = f.id
         WHERE f.id = ${fieldId}`)) as unknown as [RawReadState[]]
       const row = rows[0]
       if (!row) return null
       return {
         field: { id: row.id, name: row.name, farmId: row.farmId },
+        timeZone: row.timeZone,
         meta:
           row.hours === null
             ? undefined

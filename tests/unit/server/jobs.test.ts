@@ -2,7 +2,7 @@
 // the dead-process check, the nightly schedule and error texts.
 import { describe, expect, it } from 'vitest'
 import { forecastField, nominalConstellation } from '../../../shared/precision/index.ts'
-import { forecastWindow } from '../../../shared/schemas/forecast.ts'
+import { forecastWindow, windowSpan } from '../../../shared/schemas/forecast.ts'
 import { runEngineTask } from '../../../server/jobs/engineWorker.ts'
 import { msUntilLocalTime, nightlyKey } from '../../../server/jobs/index.ts'
 import { engineTask, inputsVersion, outagesInWindow, type VersionInputs } from '../../../server/forecast/inputs.ts'
@@ -89,10 +89,64 @@ describe('inputs version', () => {
   })
 })
 
-describe('forecast window', () => {
-  it('is 168 hours from 00:00 UTC of the current day', () => {
-    expect(forecastWindow(Date.UTC(2026, 11, 2, 15, 30))).toEqual({ startMs: Date.UTC(2026, 11, 2), endMs: Date.UTC(2026, 11, 9), hours: 168 })
-    expect(forecastWindow(Date.UTC(2026, 11, 2)).startMs).toBe(Date.UTC(2026, 11, 2))
+// Zone rules of the checks below: United States daylight saving time begins on the second
+// Sunday of March and ends on the first Sunday of November at 02:00 local time (15 U.S.C.
+// 260a, as amended by the Energy Policy Act of 2005, sec. 110): 8 March and 1 November in
+// 2026. The European Union's summer time begins and ends at 01:00 UTC on the last Sundays
+// of March and October (Directive 2000/84/EC, Art. 2 and 3): 29 March and 25 October 2026.
+// India Standard Time is UTC+05:30 all year (IANA tz database, zone Asia/Kolkata).
+describe('forecast window (the farm\'s seven local days)', () => {
+  const H = 3_600_000
+  it('runs from 00:00 local today through the end of the seventh local day', () => {
+    // 15:30 UTC on 3 Dec is 09:30 CST (UTC-6) in Chicago.
+    expect(forecastWindow(Date.UTC(2026, 11, 3, 15, 30), 'America/Chicago')).toEqual({
+      startMs: Date.UTC(2026, 11, 3, 6),
+      endMs: Date.UTC(2026, 11, 10, 6),
+      hours: 168,
+    })
+    // 05:59 UTC on 4 Dec is still 23:59 on 3 Dec in Chicago; 06:00 UTC is its midnight.
+    expect(forecastWindow(Date.UTC(2026, 11, 4, 5, 59), 'America/Chicago').startMs).toBe(Date.UTC(2026, 11, 3, 6))
+    expect(forecastWindow(Date.UTC(2026, 11, 4, 6), 'America/Chicago').startMs).toBe(Date.UTC(2026, 11, 4, 6))
+    expect(forecastWindow(Date.UTC(2026, 11, 2, 15, 30), 'UTC')).toEqual({ startMs: Date.UTC(2026, 11, 2), endMs: Date.UTC(2026, 11, 9), hours: 168 })
+  })
+
+  it('has 167 hours over a spring-forward day and 169 over a fall-back day', () => {
+    // Chicago, 5-11 March 2026: starts at 00:00 CST (06:00 UTC), ends at 00:00 CDT (05:00 UTC).
+    expect(forecastWindow(Date.UTC(2026, 2, 5, 18), 'America/Chicago')).toEqual({
+      startMs: Date.UTC(2026, 2, 5, 6),
+      endMs: Date.UTC(2026, 2, 12, 5),
+      hours: 167,
+    })
+    // Chicago, 30 Oct - 5 Nov 2026: 00:00 CDT (05:00 UTC) to 00:00 CST (06:00 UTC).
+    expect(forecastWindow(Date.UTC(2026, 9, 30, 12), 'America/Chicago')).toEqual({
+      startMs: Date.UTC(2026, 9, 30, 5),
+      endMs: Date.UTC(2026, 10, 6, 6),
+      hours: 169,
+    })
+    // Berlin, 27 Mar - 2 Apr 2026: 00:00 CET (23:00 UTC the day before) to 00:00 CEST (22:00 UTC).
+    expect(forecastWindow(Date.UTC(2026, 2, 27, 12), 'Europe/Berlin')).toEqual({
+      startMs: Date.UTC(2026, 2, 26, 23),
+      endMs: Date.UTC(2026, 3, 2, 22),
+      hours: 167,
+    })
+    expect(forecastWindow(Date.UTC(2026, 9, 24, 12), 'Europe/Berlin').hours).toBe(169)
+  })
+
+  it('starts at the first whole UTC hour of the day in a half-hour zone', () => {
+    // Midnight in Kolkata is 18:30 UTC the day before; the stored hours are whole UTC hours.
+    const w = forecastWindow(Date.UTC(2026, 11, 3, 12), 'Asia/Kolkata')
+    expect(w).toEqual({ startMs: Date.UTC(2026, 11, 2, 19), endMs: Date.UTC(2026, 11, 9, 19), hours: 168 })
+    expect((w.endMs - w.startMs) / H).toBe(w.hours)
+  })
+
+  it('refuses an unknown zone, and spans several farms from the earliest start to the latest end', () => {
+    expect(() => forecastWindow(Date.now(), 'Mars/Olympus')).toThrow(/Unknown time zone: Mars\/Olympus/)
+    const now = Date.UTC(2026, 11, 3, 12)
+    expect(windowSpan(now, ['America/Chicago', 'Europe/Berlin', 'America/Chicago'])).toEqual({
+      startMs: Date.UTC(2026, 11, 2, 23),
+      endMs: Date.UTC(2026, 11, 10, 6),
+    })
+    expect(windowSpan(now, [])).toBeNull()
   })
 })
 
