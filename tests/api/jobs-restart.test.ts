@@ -2,85 +2,40 @@
 // through the API, the server is killed with SIGKILL while they run, and a new server
 // process finishes every job. Afterwards each field has exactly the window's hours (no
 // duplicates, no partial set, one inputs version) and no job is left running.
-import { spawn, type ChildProcess } from 'node:child_process'
-import { join } from 'node:path'
 import { and, inArray } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { Job } from '../../shared/schemas/jobs.ts'
 import { openDatabase, type DatabaseHandle } from '../../server/db/index.ts'
 import { runMigrations } from '../../server/db/migrate.ts'
 import { createRepositories } from '../../server/db/repositories/index.ts'
 import { jobs } from '../../server/db/schema-planning.ts'
 import { seedDemo } from '../../seed/index.ts'
-import { freePort, root } from '../e2e/support.ts'
+import { freePort } from '../e2e/support.ts'
 import { ensureForecastFields, fieldWindow } from '../support/forecastFields.ts'
 import { demo, DEMO_PASSWORD } from '../support/server.ts'
+import { killHard, queueRecomputes, signInAs, startServer, stopCleanly, type ServerProcess } from '../support/serverProcess.ts'
 
 let db: DatabaseHandle
 let fieldIds: number[] = []
-let current: ChildProcess | undefined
-let output = ''
+const servers: ServerProcess[] = []
+/** What every server of the test printed, for the failure messages. */
+const output = () => servers.map((s) => s.output()).join('\n---\n')
 
-interface Server {
-  child: ChildProcess
-  baseUrl: string
-  exited: Promise<number | null>
-}
-
-async function startServer(port: number): Promise<Server> {
-  const child = spawn(join(root, 'node_modules', '.bin', 'tsx'), ['server/index.ts'], {
-    cwd: root,
-    env: {
-      ...process.env,
+async function start(): Promise<ServerProcess> {
+  const server = await startServer(
+    {
       NODE_ENV: 'test',
-      PORT: String(port),
-      HOST: '127.0.0.1',
-      FAKE_SMTP_PORT: '0',
-      SMTP_URL: '',
-      PUBLIC_URL: '',
       LOG_LEVEL: 'info',
       JOB_CONCURRENCY: '2',
       FORECAST_STEP_MIN: '5',
       // Twice the usual sample points, so a job lasts long enough to be caught mid-run.
       FORECAST_SAMPLES: '128',
     },
-    stdio: ['ignore', 'pipe', 'pipe'],
-    // Its own process group, so that tsx's node child is killed with it.
-    detached: true,
-  })
-  current = child
-  const mark = output.length
-  child.stdout?.on('data', (c: Buffer) => (output += c.toString()))
-  child.stderr?.on('data', (c: Buffer) => (output += c.toString()))
-  const exited = new Promise<number | null>((done) => child.once('exit', (code) => done(code)))
-  const baseUrl = `http://127.0.0.1:${port}`
-  const deadline = Date.now() + 90_000
-  for (;;) {
-    if (child.exitCode !== null) throw new Error(`The server exited with ${child.exitCode}:\n${output}`)
-    try {
-      // Ready once the API answers and the process has printed its ready line (its jobs,
-      // recovery and start-up check have started).
-      if ((await fetch(`${baseUrl}/api/health`)).ok && output.slice(mark).includes('Skyfurrow listening')) break
-    } catch {
-      // not listening yet
-    }
-    if (Date.now() > deadline) throw new Error(`The server did not start:\n${output}`)
-    await new Promise((r) => setTimeout(r, 200))
-  }
-  return { child, baseUrl, exited }
-}
-
-/** SIGKILL to the whole process group (tsx and the node process it runs). */
-async function killHard(server: Server): Promise<void> {
-  process.kill(-server.child.pid!, 'SIGKILL')
-  await server.exited
-}
-
-async function stopCleanly(server: Server): Promise<void> {
-  process.kill(-server.child.pid!, 'SIGTERM')
-  const timer = setTimeout(() => process.kill(-server.child.pid!, 'SIGKILL'), 15_000)
-  await server.exited
-  clearTimeout(timer)
+    await freePort(),
+    // Ready once its jobs, recovery and start-up check have started.
+    { readyLine: 'Skyfurrow listening', timeoutMs: 90_000 },
+  )
+  servers.push(server)
+  return server
 }
 
 async function until<T>(probe: () => Promise<T | null | undefined | false>, what: string, timeoutMs = 120_000): Promise<T> {
@@ -88,7 +43,7 @@ async function until<T>(probe: () => Promise<T | null | undefined | false>, what
   for (;;) {
     const v = await probe()
     if (v) return v
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}\n${output.slice(-3000)}`)
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}\n${output().slice(-3000)}`)
     await new Promise((r) => setTimeout(r, 50))
   }
 }
@@ -102,39 +57,17 @@ beforeAll(async () => {
 })
 
 afterAll(async () => {
-  if (current && current.exitCode === null && current.pid) {
-    try {
-      process.kill(-current.pid, 'SIGKILL')
-    } catch {
-      // already gone
-    }
-  }
+  for (const s of servers) await killHard(s)
   await db?.close()
 })
 
 describe('restart safety', () => {
   it('kill -9 in the middle of recomputes, start again: every job completes, every field has exactly its window', { timeout: 400_000 }, async () => {
     const repos = createRepositories(db.db)
-    const port = await freePort()
-    const first = await startServer(port)
+    const first = await start()
     // Sign in and queue a recompute of each field through the API, as a user would.
-    const signIn = await fetch(`${first.baseUrl}/api/auth/sign-in`, {
-      method: 'POST',
-      headers: { 'Content-Type': 'application/json', Origin: first.baseUrl },
-      body: JSON.stringify({ email: demo.office, password: DEMO_PASSWORD }),
-    })
-    expect(signIn.status).toBe(200)
-    const cookie = signIn.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ')
-    const queued: Job[] = []
-    for (const id of fieldIds) {
-      const res = await fetch(`${first.baseUrl}/api/fields/${id}/recompute`, {
-        method: 'POST',
-        headers: { 'Content-Type': 'application/json', Origin: first.baseUrl, Cookie: cookie },
-        body: '{}',
-      })
-      expect(res.status).toBe(202)
-      queued.push((await res.json()) as Job)
-    }
+    const cookie = await signInAs(first.baseUrl, demo.office, DEMO_PASSWORD)
+    const queued = await queueRecomputes(first.baseUrl, cookie, fieldIds)
     const ids = queued.map((j) => j.id)
     const ours = () => db.db.select().from(jobs).where(inArray(jobs.id, ids))
 
@@ -152,7 +85,7 @@ describe('restart safety', () => {
     expect(leftRunning.length).toBeGreaterThan(0)
 
     // A new process on the same database.
-    const second = await startServer(await freePort())
+    const second = await start()
     await until(async () => {
       const rows = await ours()
       const open = await db.db.select().from(jobs).where(and(inArray(jobs.fieldId, fieldIds), inArray(jobs.status, ['running', 'queued'])))
@@ -202,7 +135,7 @@ describe('restart safety', () => {
     const doneOfFields = await db.db.select().from(jobs).where(and(inArray(jobs.fieldId, fieldIds), inArray(jobs.status, ['done'])))
     expect(new Set(doneOfFields.map((j) => j.id)).size).toBe(doneOfFields.length)
     for (const j of doneOfFields) expect(j.lockedBy, `job ${j.id} is done and released`).toBeNull()
-    expect(output).toMatch(/queued again/)
+    expect(output()).toMatch(/queued again/)
     await stopCleanly(second)
   })
 })

@@ -7,7 +7,6 @@
 // hours, all from its job of this test.
 import { and, inArray } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { Job } from '../../shared/schemas/jobs.ts'
 import { openDatabase, type DatabaseHandle } from '../../server/db/index.ts'
 import { runMigrations } from '../../server/db/migrate.ts'
 import { createRepositories } from '../../server/db/repositories/index.ts'
@@ -16,7 +15,7 @@ import { seedDemo } from '../../seed/index.ts'
 import { freePort } from '../e2e/support.ts'
 import { ensureForecastFields, fieldWindow } from '../support/forecastFields.ts'
 import { demo, DEMO_PASSWORD } from '../support/server.ts'
-import { groupPids, startServer, type ServerProcess } from '../support/serverProcess.ts'
+import { groupPids, killHard, queueRecomputes, signInAs, startServer, type ServerProcess } from '../support/serverProcess.ts'
 
 let db: DatabaseHandle
 let fieldIds: number[] = []
@@ -53,13 +52,7 @@ beforeAll(async () => {
 })
 
 afterAll(async () => {
-  for (const s of servers) {
-    try {
-      process.kill(-s.child.pid!, 'SIGKILL')
-    } catch {
-      // already gone
-    }
-  }
+  for (const s of servers) await killHard(s)
   await db?.close()
 })
 
@@ -75,23 +68,9 @@ describe('two job processes and a page process', () => {
     const webPids = new Set(groupPids(web.child.pid!))
     const aPids = new Set(groupPids(a.child.pid!))
 
-    const signIn = await fetch(`${web.baseUrl}/api/auth/sign-in`, {
-      method: 'POST',
-      headers: { 'Content-Type': 'application/json', Origin: web.baseUrl },
-      body: JSON.stringify({ email: demo.office, password: DEMO_PASSWORD }),
-    })
-    expect(signIn.status).toBe(200)
-    const cookie = signIn.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ')
-    const queued: Job[] = []
-    for (const id of fieldIds) {
-      const res = await fetch(`${web.baseUrl}/api/fields/${id}/recompute`, {
-        method: 'POST',
-        headers: { 'Content-Type': 'application/json', Origin: web.baseUrl, Cookie: cookie },
-        body: '{}',
-      })
-      expect(res.status).toBe(202)
-      queued.push((await res.json()) as Job)
-    }
+    // Sign in and queue a recompute of each field through the page process, as a user would.
+    const cookie = await signInAs(web.baseUrl, demo.office, DEMO_PASSWORD)
+    const queued = await queueRecomputes(web.baseUrl, cookie, fieldIds)
     const ids = queued.map((j) => j.id)
     const ours = () => db.db.select().from(jobs).where(inArray(jobs.id, ids))
 
@@ -109,8 +88,7 @@ describe('two job processes and a page process', () => {
       const mine = rows.filter((r) => r.status === 'running' && aPids.has(pidOf(r.lockedBy)))
       return mine.length > 0 && rows.filter((r) => r.status === 'done').length < rows.length - 1 && mine.map((r) => r.id)
     }, 'a job running on process A')
-    process.kill(-a.child.pid!, 'SIGKILL')
-    await new Promise((r) => (a.child.exitCode !== null || a.child.signalCode !== null ? r(null) : a.child.once('exit', r)))
+    await killHard(a)
     const stillHeld = (await ours()).filter((r) => heldByA.includes(r.id) && r.status === 'running')
     expect(stillHeld.length).toBeGreaterThan(0)
 

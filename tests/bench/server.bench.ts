@@ -16,9 +16,7 @@
  * Benchmarks are measurements, not tests: nothing here fails on a slow machine. Targets
  * (this 2-core machine): all fields in under 30 s, forecast read p95 under 100 ms.
  */
-import { spawn, spawnSync, type ChildProcess } from 'node:child_process'
 import { cpus } from 'node:os'
-import { join, resolve } from 'node:path'
 import { defaultJobConcurrency } from '../../server/config.ts'
 import { openDatabase } from '../../server/db/index.ts'
 import { runMigrations } from '../../server/db/migrate.ts'
@@ -26,19 +24,21 @@ import { createRepositories } from '../../server/db/repositories/index.ts'
 import { seedDemo } from '../../seed/index.ts'
 import { freePort } from '../e2e/support.ts'
 import { ensureForecastFields } from '../support/forecastFields.ts'
-import { load as loadPaths, percentile, type LoadResult } from '../support/serverProcess.ts'
+import {
+  benchDatabaseUrl,
+  load as loadPaths,
+  percentile,
+  queueRecomputes,
+  signInCookie,
+  startServer,
+  stopCleanly,
+  waitIdle,
+  type LoadResult,
+} from '../support/serverProcess.ts'
 
-const root = resolve(import.meta.dirname, '..', '..')
 const CONNECTIONS = 50
 const MIN_FIELDS = 12
 const jobConcurrency = process.env.BENCH_JOB_CONCURRENCY ?? String(defaultJobConcurrency)
-
-function databaseUrl(): string {
-  if (process.env.DATABASE_URL) return process.env.DATABASE_URL
-  const out = spawnSync('node', ['server/setup/db.mjs', 'skyfurrow_bench', '--fresh'], { cwd: root, encoding: 'utf8' })
-  if (out.status !== 0) throw new Error(`could not start the private MariaDB:\n${out.stderr}`)
-  return out.stdout.trim().split('\n').pop()!
-}
 
 /** Reads of the fields' stored weeks at CONNECTIONS clients until `until` (the shared load runner). */
 function load(baseUrl: string, cookie: string, fieldIds: number[], until: Promise<unknown> | number): Promise<LoadResult> {
@@ -46,7 +46,7 @@ function load(baseUrl: string, cookie: string, fieldIds: number[], until: Promis
 }
 
 async function main(): Promise<void> {
-  const url = databaseUrl()
+  const url = benchDatabaseUrl()
   const handle = openDatabase(url, { connectionLimit: 4 })
   await runMigrations(handle.db)
   await seedDemo(handle.db)
@@ -62,54 +62,14 @@ async function main(): Promise<void> {
   }
   const fieldIds = fields.map((f) => f.id)
 
-  const port = await freePort()
-  const baseUrl = `http://127.0.0.1:${port}`
-  let output = ''
   const t0 = Date.now()
-  const child: ChildProcess = spawn(join(root, 'node_modules', '.bin', 'tsx'), ['server/index.ts'], {
-    cwd: root,
-    env: {
-      ...process.env,
-      DATABASE_URL: url,
-      NODE_ENV: 'production',
-      PORT: String(port),
-      HOST: '127.0.0.1',
-      FAKE_SMTP_PORT: '0',
-      SMTP_URL: '',
-      PUBLIC_URL: '',
-      LOG_LEVEL: 'warn',
-      JOB_CONCURRENCY: jobConcurrency,
-      FORECAST_STEP_MIN: '5',
-      FORECAST_SAMPLES: '64',
-    },
-    stdio: ['ignore', 'pipe', 'pipe'],
-    detached: true,
-  })
-  child.stdout?.on('data', (c: Buffer) => (output += c.toString()))
-  child.stderr?.on('data', (c: Buffer) => (output += c.toString()))
-  const stop = () => {
-    try {
-      process.kill(-child.pid!, 'SIGTERM')
-    } catch {
-      // gone
-    }
-  }
-  process.on('exit', stop)
+  const server = await startServer({ DATABASE_URL: url, JOB_CONCURRENCY: jobConcurrency, FORECAST_STEP_MIN: '5', FORECAST_SAMPLES: '64' }, await freePort())
+  const { baseUrl } = server
   try {
-    for (;;) {
-      if (child.exitCode !== null) throw new Error(`the server exited:\n${output}`)
-      try {
-        if ((await fetch(`${baseUrl}/api/health`)).ok) break
-      } catch {
-        // not yet
-      }
-      await new Promise((r) => setTimeout(r, 200))
-    }
     const startMs = Date.now() - t0
 
-    // Sign in (the demo office account; demo sign-ins are refused in production, so the
-    // bench signs in with an account of its own... see below).
-    const cookie = await signInCookie(baseUrl, handle, output)
+    // Demo sign-ins are refused in production: the bench signs in with an account of its own.
+    const cookie = await signInCookie(baseUrl, handle, server.output())
 
     // Warm-up: the start-up sweep computes every field.
     const warmStart = Date.now()
@@ -117,17 +77,8 @@ async function main(): Promise<void> {
     const warmMs = Date.now() - warmStart
 
     // Measured: recompute every field while reads run at 50 connections.
-    const jobIds: number[] = []
     const recomputeStart = Date.now()
-    for (const id of fieldIds) {
-      const res = await fetch(`${baseUrl}/api/fields/${id}/recompute`, {
-        method: 'POST',
-        headers: { Origin: baseUrl, Cookie: cookie, 'Content-Type': 'application/json' },
-        body: '{}',
-      })
-      if (res.status !== 202) throw new Error(`recompute of field ${id}: HTTP ${res.status} ${await res.text()}`)
-      jobIds.push(((await res.json()) as { id: number }).id)
-    }
+    const jobIds = (await queueRecomputes(baseUrl, cookie, fieldIds)).map((j) => j.id)
     const done = waitJobs(baseUrl, cookie, jobIds).then(() => Date.now() - recomputeStart)
     const busy = await load(baseUrl, cookie, fieldIds, done)
     const recomputeMs = await done
@@ -162,40 +113,8 @@ async function main(): Promise<void> {
     console.log(`| ${'-'.repeat(w)} | ----- |`)
     for (const [k, v] of rows) console.log(`| ${k.padEnd(w)} | ${v} |`)
   } finally {
-    stop()
-    await new Promise((r) => setTimeout(r, 500))
+    await stopCleanly(server)
     await handle.close()
-  }
-}
-
-/**
- * A session for the bench: the server runs in production mode (as deployed), where the
- * demo accounts may not sign in, so the bench gives itself an office account.
- */
-async function signInCookie(baseUrl: string, handle: ReturnType<typeof openDatabase>, output: string): Promise<string> {
-  const { hashPassword } = await import('../../server/auth/password.ts')
-  const repos = createRepositories(handle.db)
-  const email = 'bench.office@skyfurrow.example'
-  const password = 'bench-password-not-secret'
-  const existing = await repos.users.findByEmail(email)
-  if (existing) await repos.users.update(existing.id, { passwordHash: await hashPassword(password), active: true })
-  else await repos.users.insert({ email, name: 'Bench office', role: 'office', passwordHash: await hashPassword(password) })
-  const res = await fetch(`${baseUrl}/api/auth/sign-in`, {
-    method: 'POST',
-    headers: { 'Content-Type': 'application/json', Origin: baseUrl },
-    body: JSON.stringify({ email, password }),
-  })
-  if (res.status !== 200) throw new Error(`bench sign-in failed: ${res.status} ${await res.text()}\n${output}`)
-  return res.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ')
-}
-
-async function waitIdle(baseUrl: string, cookie: string): Promise<void> {
-  // The sweep may still be enqueueing just after start: wait for work to appear or 3 s.
-  const appear = Date.now() + 3_000
-  for (;;) {
-    const s = (await (await fetch(`${baseUrl}/api/jobs/summary`, { headers: { Cookie: cookie } })).json()) as { active: boolean }
-    if (!s.active && Date.now() > appear) return
-    await new Promise((r) => setTimeout(r, 200))
   }
 }
 

@@ -20,8 +20,8 @@ import { spawn, spawnSync, type ChildProcess } from 'node:child_process'
 import { mkdtempSync, rmSync } from 'node:fs'
 import { createServer } from 'node:net'
 import { tmpdir } from 'node:os'
-import { join, resolve } from 'node:path'
-import { fileURLToPath, pathToFileURL } from 'node:url'
+import { join } from 'node:path'
+import { pathToFileURL } from 'node:url'
 import { and, count, eq, inArray, like, sql } from 'drizzle-orm'
 import { DateTime } from 'luxon'
 import { forecastWindow } from '../../shared/schemas/forecast.ts'
@@ -34,8 +34,8 @@ import { createLogger } from '../../server/logger.ts'
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp.ts'
 import { seedDemo } from '../../seed/index.ts'
 import { DEMO_PASSWORD } from '../../seed/scenario.ts'
+import { killHard, queueRecomputes, signInAs, startServer as startServerProcess, stopCleanly, type ServerProcess } from '../support/serverProcess.ts'
 
-const root = resolve(fileURLToPath(new URL('.', import.meta.url)), '..', '..')
 const OFFICE = 'office@demo.skyfurrow.test'
 
 export interface FaultOptions {
@@ -178,79 +178,13 @@ GRANT ALL ON skyfurrow_faults.* TO 'faults'@'127.0.0.1';`
 
 // ---- server processes ---------------------------------------------------------------------
 
-interface ServerProcess {
-  child: ChildProcess
-  baseUrl: string
-  exited: Promise<void>
-  output(): string
-}
-
+/** A server process on the fault database (its own process group, so SIGKILL reaches tsx and node). */
 async function startServer(databaseUrl: string, smtpUrl: string): Promise<ServerProcess> {
-  const port = await freePort()
-  let out = ''
-  const child = spawn(join(root, 'node_modules', '.bin', 'tsx'), ['server/index.ts'], {
-    cwd: root,
-    env: {
-      ...process.env,
-      NODE_ENV: 'test',
-      DATABASE_URL: databaseUrl,
-      PORT: String(port),
-      HOST: '127.0.0.1',
-      SMTP_URL: smtpUrl,
-      PUBLIC_URL: '',
-      LOG_LEVEL: 'info',
-      JOB_CONCURRENCY: '2',
-      FORECAST_STEP_MIN: '10',
-    },
-    stdio: ['ignore', 'pipe', 'pipe'],
-    // Its own process group: SIGKILL reaches tsx and the node process it runs.
-    detached: true,
-  })
-  child.stdout?.on('data', (c: Buffer) => (out += c.toString()))
-  child.stderr?.on('data', (c: Buffer) => (out += c.toString()))
-  const exited = new Promise<void>((r) => child.once('exit', () => r()))
-  const leftBehind = () => {
-    try {
-      process.kill(-child.pid!, 'SIGKILL')
-    } catch {
-      // already gone
-    }
-  }
-  process.once('exit', leftBehind)
-  void exited.then(() => process.off('exit', leftBehind))
-  const baseUrl = `http://127.0.0.1:${port}`
-  await until(
-    'the server to be ready',
-    async () => {
-      if (child.exitCode !== null) throw new Error(`the server exited:\n${out}`)
-      return (await fetch(`${baseUrl}/api/health`)).ok && out.includes('Skyfurrow listening')
-    },
-    120_000,
-    150,
-  ).catch((error: unknown) => {
-    throw new Error(`${(error as Error).message}\n${out.slice(-3000)}`)
-  })
-  return { child, baseUrl, exited, output: () => out }
-}
-
-async function killHard(server: ServerProcess): Promise<void> {
-  try {
-    process.kill(-server.child.pid!, 'SIGKILL')
-  } catch {
-    // already gone
-  }
-  await server.exited
-}
-
-async function stopCleanly(server: ServerProcess): Promise<void> {
-  try {
-    process.kill(-server.child.pid!, 'SIGTERM')
-  } catch {
-    return
-  }
-  const force = setTimeout(() => killHard(server), 15_000)
-  await server.exited
-  clearTimeout(force)
+  return startServerProcess(
+    { NODE_ENV: 'test', DATABASE_URL: databaseUrl, SMTP_URL: smtpUrl, LOG_LEVEL: 'info', JOB_CONCURRENCY: '2', FORECAST_STEP_MIN: '10' },
+    await freePort(),
+    { readyLine: 'Skyfurrow listening' },
+  )
 }
 
 class Api {
@@ -272,13 +206,7 @@ class Api {
     return { status: res.status, body: json }
   }
   async signIn(email: string): Promise<void> {
-    const res = await fetch(`${this.baseUrl}/api/auth/sign-in`, {
-      method: 'POST',
-      headers: { 'Content-Type': 'application/json', Origin: this.baseUrl },
-      body: JSON.stringify({ email, password: DEMO_PASSWORD }),
-    })
-    if (res.status !== 200) throw new Error(`sign-in answered ${res.status}`)
-    this.cookie = res.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ')
+    this.cookie = await signInAs(this.baseUrl, email, DEMO_PASSWORD)
   }
 }
 
@@ -289,13 +217,7 @@ async function openJobs(db: DatabaseHandle) {
 }
 
 async function queueAll(api: Api, fieldIds: number[]): Promise<number[]> {
-  const ids: number[] = []
-  for (const id of fieldIds) {
-    const res = await api.call('POST', `/api/fields/${id}/recompute`, {})
-    if (res.status !== 202) throw new Error(`POST /api/fields/${id}/recompute answered ${res.status}: ${JSON.stringify(res.body)}`)
-    ids.push((res.body as { id: number }).id)
-  }
-  return ids
+  return (await queueRecomputes(api.baseUrl, api.cookie, fieldIds)).map((j) => j.id)
 }
 
 /** Jobs of ours that are neither done nor superseded by a later job of the field that is done. */

@@ -9,6 +9,7 @@ import { spawn, spawnSync, type ChildProcess } from 'node:child_process'
 import { existsSync, readdirSync, readFileSync } from 'node:fs'
 import { join, resolve } from 'node:path'
 import autocannon from 'autocannon'
+import type { Job } from '../../shared/schemas/jobs.ts'
 import type { openDatabase } from '../../server/db/index.ts'
 import { createRepositories } from '../../server/db/repositories/index.ts'
 
@@ -95,11 +96,17 @@ export interface ServerProcess {
   child: ChildProcess
   baseUrl: string
   output: () => string
+  /** Resolves with the exit code (null when killed by a signal) once the process has exited. */
+  exited: Promise<number | null>
   stop: () => void
 }
 
-/** Starts `tsx server/index.ts` in a process group of its own and waits until it is healthy. */
-export async function startServer(env: Record<string, string>, port: number): Promise<ServerProcess> {
+/**
+ * Starts `tsx server/index.ts` in a process group of its own (so that tsx's node child
+ * goes with it) and waits until it is healthy and, with `readyLine`, until it has printed
+ * that line (its jobs, recovery and start-up check have started).
+ */
+export async function startServer(env: Record<string, string>, port: number, options: { readyLine?: string; timeoutMs?: number } = {}): Promise<ServerProcess> {
   let output = ''
   const child: ChildProcess = spawn(join(root, 'node_modules', '.bin', 'tsx'), ['server/index.ts'], {
     cwd: root,
@@ -119,25 +126,76 @@ export async function startServer(env: Record<string, string>, port: number): Pr
   })
   child.stdout?.on('data', (c: Buffer) => (output += c.toString()))
   child.stderr?.on('data', (c: Buffer) => (output += c.toString()))
-  const stop = () => {
+  const exited = new Promise<number | null>((done) => child.once('exit', (code) => done(code)))
+  const signal = (name: NodeJS.Signals) => {
     try {
-      process.kill(-child.pid!, 'SIGTERM')
+      process.kill(-child.pid!, name)
     } catch {
       // gone
     }
   }
-  process.on('exit', stop)
+  const stop = () => signal('SIGTERM')
+  // A server left running when this process ends goes with it.
+  const leftBehind = () => signal('SIGKILL')
+  process.once('exit', leftBehind)
+  void exited.then(() => process.off('exit', leftBehind))
   const baseUrl = `http://127.0.0.1:${port}`
+  const deadline = Date.now() + (options.timeoutMs ?? 120_000)
   for (;;) {
-    if (child.exitCode !== null) throw new Error(`the server exited:\n${output}`)
+    if (child.exitCode !== null) throw new Error(`the server exited with ${child.exitCode}:\n${output}`)
     try {
-      if ((await fetch(`${baseUrl}/api/health`)).ok) break
+      if ((await fetch(`${baseUrl}/api/health`)).ok && (!options.readyLine || output.includes(options.readyLine))) break
     } catch {
       // not yet
     }
+    if (Date.now() > deadline) throw new Error(`the server did not start:\n${output}`)
     await new Promise((r) => setTimeout(r, 200))
   }
-  return { child, baseUrl, output: () => output, stop }
+  return { child, baseUrl, output: () => output, exited, stop }
+}
+
+/** SIGKILL to the server's whole process group; resolves once it has exited. */
+export async function killHard(server: ServerProcess): Promise<void> {
+  try {
+    process.kill(-server.child.pid!, 'SIGKILL')
+  } catch {
+    // already gone
+  }
+  await server.exited
+}
+
+/** SIGTERM (a clean stop), SIGKILL after 15 s; resolves once the server has exited. */
+export async function stopCleanly(server: ServerProcess): Promise<void> {
+  server.stop()
+  const timer = setTimeout(() => void killHard(server), 15_000)
+  await server.exited
+  clearTimeout(timer)
+}
+
+/** Signs in through the API as a user would; returns the session's Cookie header. */
+export async function signInAs(baseUrl: string, email: string, password: string): Promise<string> {
+  const res = await fetch(`${baseUrl}/api/auth/sign-in`, {
+    method: 'POST',
+    headers: { 'Content-Type': 'application/json', Origin: baseUrl },
+    body: JSON.stringify({ email, password }),
+  })
+  if (res.status !== 200) throw new Error(`sign-in of ${email} answered ${res.status}: ${await res.text()}`)
+  return res.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ')
+}
+
+/** Queues a recompute of each field through the API (POST /api/fields/:id/recompute, 202); returns the jobs. */
+export async function queueRecomputes(baseUrl: string, cookie: string, fieldIds: number[]): Promise<Job[]> {
+  const queued: Job[] = []
+  for (const id of fieldIds) {
+    const res = await fetch(`${baseUrl}/api/fields/${id}/recompute`, {
+      method: 'POST',
+      headers: { 'Content-Type': 'application/json', Origin: baseUrl, Cookie: cookie },
+      body: '{}',
+    })
+    if (res.status !== 202) throw new Error(`the recompute of field ${id} answered ${res.status}: ${await res.text()}`)
+    queued.push((await res.json()) as Job)
+  }
+  return queued
 }
 
 /**
@@ -152,13 +210,11 @@ export async function signInCookie(baseUrl: string, handle: ReturnType<typeof op
   const existing = await repos.users.findByEmail(email)
   if (existing) await repos.users.update(existing.id, { passwordHash: await hashPassword(password), active: true })
   else await repos.users.insert({ email, name: 'Bench office', role: 'office', passwordHash: await hashPassword(password) })
-  const res = await fetch(`${baseUrl}/api/auth/sign-in`, {
-    method: 'POST',
-    headers: { 'Content-Type': 'application/json', Origin: baseUrl },
-    body: JSON.stringify({ email, password }),
-  })
-  if (res.status !== 200) throw new Error(`bench sign-in failed: ${res.status} ${await res.text()}\n${output}`)
-  return res.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ')
+  try {
+    return await signInAs(baseUrl, email, password)
+  } catch (error) {
+    throw new Error(`bench sign-in failed: ${(error as Error).message}\n${output}`)
+  }
 }
 
 /** Waits until the job queue is idle (work may still be appearing for `appearMs` after start). */
