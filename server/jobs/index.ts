@@ -130,6 +130,8 @@ export async function startJobs(deps: {
   handlers?: Record<string, JobHandler>
   /** Skip the start-up sweep (tests that want an empty queue). */
   sweep?: boolean
+  /** Skip the nightly refresh and the hourly new-day check (tests that run only their own jobs). */
+  schedule?: boolean
 }): Promise<JobsHandle> {
   const { store, config, logger } = deps
   const offTriggers = registerForecastTriggers(store, logger)
@@ -154,10 +156,13 @@ export async function startJobs(deps: {
   // The nightly refresh at the configured server-local time; and, since each farm's week
   // starts at its own local midnight, an hourly check that queues the fields of the farms
   // whose day has turned.
-  const timers = [
-    repeat(() => msUntilLocalTime(config.nightlyRefreshTime) + 1_000, () => enqueueNightly(store), 'the nightly refresh', logger),
-    repeat(() => msUntilNextHour(), () => enqueueNewDay(store), 'the new-day check', logger),
-  ]
+  const timers =
+    deps.schedule === false
+      ? []
+      : [
+          repeat(() => msUntilLocalTime(config.nightlyRefreshTime) + 1_000, () => enqueueNightly(store), 'the nightly refresh', logger),
+          repeat(() => msUntilNextHour(), () => enqueueNewDay(store), 'the new-day check', logger),
+        ]
   return {
     runner,
     pool,

@@ -283,8 +283,11 @@ export function useFarmMap(options: FarmMapOptions) {
     return true
   }
 
+  /** Moves the view to a place at once (an animation could be cut short by a view change meanwhile). */
   function goTo(lonLat: [number, number], zoom = 16): void {
-    map?.getView().animate({ center: fromLonLat(lonLat), zoom, duration: 200 })
+    const view = map?.getView()
+    view?.setCenter(fromLonLat(lonLat))
+    view?.setZoom(zoom)
   }
 
   function setPreview(items: { index: number; geometry: unknown; label: string; checked: boolean; problems: string[] }[], fit = false): void {

@@ -40,6 +40,8 @@ beforeAll(async () => {
     config: { ...server.config, forecastStepMin: 15, forecastSampleCount: 16, jobConcurrency: 2 },
     logger: createLogger('error'),
     sweep: false,
+    // Only this file's jobs: no nightly refresh or new-day check queues other fields meanwhile.
+    schedule: false,
   })
   for (const key of ['admin', 'office', 'contractor', 'clientNorth', 'clientSouth'] as const) as[key] = await signIn(server.app, demo[key])
   const northFarm = (await as.clientNorth.get('/api/farms')).body.items[0].id as number

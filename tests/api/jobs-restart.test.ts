@@ -6,13 +6,13 @@ import { and, inArray } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { openDatabase, type DatabaseHandle } from '../../server/db/index.ts'
 import { runMigrations } from '../../server/db/migrate.ts'
-import { createRepositories } from '../../server/db/repositories/index.ts'
 import { jobs } from '../../server/db/schema-planning.ts'
 import { seedDemo } from '../../seed/index.ts'
 import { freePort } from '../e2e/support.ts'
-import { ensureForecastFields, fieldWindow } from '../support/forecastFields.ts'
+import { ensureForecastFields } from '../support/forecastFields.ts'
 import { demo, DEMO_PASSWORD } from '../support/server.ts'
 import { killHard, queueRecomputes, signInAs, startServer, stopCleanly, type ServerProcess } from '../support/serverProcess.ts'
+import { expectOneCompleteWeek } from '../support/weekChecks.ts'
 
 let db: DatabaseHandle
 let fieldIds: number[] = []
@@ -63,7 +63,6 @@ afterAll(async () => {
 
 describe('restart safety', () => {
   it('kill -9 in the middle of recomputes, start again: every job completes, every field has exactly its window', { timeout: 400_000 }, async () => {
-    const repos = createRepositories(db.db)
     const first = await start()
     // Sign in and queue a recompute of each field through the API, as a user would.
     const cookie = await signInAs(first.baseUrl, demo.office, DEMO_PASSWORD)
@@ -101,35 +100,8 @@ describe('restart safety', () => {
     }
     expect(await db.db.select().from(jobs).where(and(inArray(jobs.id, ids), inArray(jobs.status, ['running', 'queued'])))).toEqual([])
 
-    // Exactly the window's hours per field, consecutive, one inputs version, from the last job.
-    const meta = await repos.forecasts.storedMeta(fieldIds)
-    for (const id of fieldIds) {
-      // The week of the field's farm: its local days.
-      const window = await fieldWindow(db.db, id)
-      const m = meta.get(id)!
-      expect(m.hours, `hours of field ${id}`).toBe(window.hours)
-      expect(m.firstHour?.getTime()).toBe(window.startMs)
-      expect(m.lastHour?.getTime()).toBe(window.endMs - 3_600_000)
-      expect(m.minVersion).toBe(m.maxVersion)
-      const hours = await repos.forecasts.hours([id], new Date(window.startMs), new Date(window.endMs))
-      expect(hours).toHaveLength(window.hours)
-      expect(new Set(hours.map((h) => h.hourStart.getTime())).size).toBe(window.hours)
-      // Every hour of the field came from one job that completed: the field's job of this
-      // test, or a later background recompute of the same field. A server's start-up check
-      // runs while the runner already claims jobs, and queues a field again when its only
-      // job is running (a running job may have read older inputs), so a later 'start-up'
-      // job can legitimately write the same week after ours (as can the hourly new-day
-      // check's job when a farm's midnight passes during the test).
-      const job = queued.find((j) => j.fieldId === id)!
-      const writers = [...new Set(hours.map((h) => h.jobId))]
-      expect(writers, `jobs that wrote field ${id}`).toHaveLength(1)
-      if (writers[0] !== job.id) {
-        const [writer] = await db.db.select().from(jobs).where(inArray(jobs.id, writers as number[]))
-        expect(writer.id).toBeGreaterThan(job.id)
-        expect([writer.kind, writer.fieldId, writer.status]).toEqual(['forecast', id, 'done'])
-        expect(['start-up', 'nightly', 'new-day']).toContain((JSON.parse(writer.payloadJson) as { reason: string }).reason)
-      }
-    }
+    // Exactly the farm's window per field, consecutive, one inputs version, from one completed job.
+    await expectOneCompleteWeek(db.db, fieldIds, queued)
     // No job of the fields ran to completion twice: one 'done' row per job id, and every
     // field's done jobs wrote their week once (no duplicate hour rows, checked above).
     const doneOfFields = await db.db.select().from(jobs).where(and(inArray(jobs.fieldId, fieldIds), inArray(jobs.status, ['done'])))

@@ -2,6 +2,7 @@
 // and opens the sky check beside the tree line: raising the tree line lifts the horizon
 // cut that the sky view shows. A boundary that crosses itself is refused with a marker.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { openDatabase } from '../../server/db/index.ts'
 import { apiFromPage, demo, screenshot, signIn, startBrowser, startServer, type RunningBrowser, type RunningServer } from './support'
 
 let server: RunningServer
@@ -13,14 +14,26 @@ const fieldName = `Creek quarter ${stamp}`
 const lat = 41.5 + (Date.now() % 1000) / 10_000
 const lon = -95.2
 
+/** The highest field and obstruction ids before this file drew or uploaded any (files run one at a time). */
+let before = { field: 0, obstruction: 0 }
+const database = openDatabase(process.env.DATABASE_URL ?? '', { connectionLimit: 2 })
+const highest = async (table: 'fields' | 'obstructions') =>
+  Number((((await database.pool.query(`SELECT COALESCE(MAX(id), 0) AS id FROM ${table}`)) as unknown as [[{ id: number }]])[0][0]).id)
+
 beforeAll(async () => {
   server = await startServer()
   browser = await startBrowser()
+  before = { field: await highest('fields'), obstruction: await highest('obstructions') }
 })
 
 afterAll(async () => {
   await browser?.close()
   await server?.stop()
+  // What this file drew and uploaded goes (the fields take their stored hours with them),
+  // so that no later file finds it on the demo farm.
+  await database.pool.query('DELETE FROM fields WHERE id > ?', [before.field])
+  await database.pool.query('DELETE FROM obstructions WHERE id > ?', [before.obstruction])
+  await database.close()
 })
 
 type Page = RunningBrowser['page']

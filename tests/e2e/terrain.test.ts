@@ -49,6 +49,8 @@ describe('Terrain: upload on the farm page, the band in the sky check', () => {
     await page.goto(`${server.baseUrl}/fields?farm=${farm.id}`)
     await page.getByTestId('farm-map').locator('canvas').first().waitFor()
     await page.getByRole('cell', { name: 'Hollow bottom', exact: true }).waitFor()
+    // The farm's fields and obstructions are on the map (its view fitted to them) before moving it.
+    await page.locator('[data-testid="farm-map"][data-loaded="yes"]').waitFor()
     await page.getByTestId('goto').fill('41.2620, -77.41889')
     await page.getByTestId('goto').press('Enter')
     await page.getByTestId('tool-sky-check').click()
