@@ -43,6 +43,12 @@ type Page = RunningBrowser['page']
  * is scrolled to the top first: a panel below the map (the sky check) may have scrolled
  * it, and the sticky header would then cover the map's upper edge.
  */
+/** Waits until the farm's fields and obstructions are on the map (its view fitted to them). */
+async function mapLoaded(page: Page): Promise<void> {
+  await page.getByTestId('farm-map').locator('canvas').first().waitFor()
+  await page.locator('[data-testid="farm-map"][data-loaded="yes"]').waitFor()
+}
+
 async function mapFrame(page: Page) {
   await page.evaluate(() => window.scrollTo(0, 0))
   const box = await page.getByTestId('farm-map').boundingBox()
@@ -92,13 +98,11 @@ describe('Fields: drawing, areas and the live sky check', () => {
     await signIn(page, server.baseUrl, demo.contractor)
     await page.goto(`${server.baseUrl}/fields`)
     await page.getByRole('heading', { name: 'Fields', level: 1 }).waitFor()
-    await page.getByTestId('farm-map').locator('canvas').first().waitFor()
-    await page.waitForTimeout(800)
+    await mapLoaded(page)
     await screenshot(page, 'fields-farm-loaded')
 
     await page.getByTestId('goto').fill(`${lat.toFixed(4)}, ${lon}`)
     await page.getByTestId('goto').press('Enter')
-    await page.waitForTimeout(600)
 
     await chooseTool(page, 'draw-field', /corners of the field; double-click to finish/)
     const map = await mapFrame(page)
@@ -289,10 +293,9 @@ describe('Fields: drawing, areas and the live sky check', () => {
   it('cuts a pond out of the drawn field and adds a second part across the road', async () => {
     const { page } = browser
     await page.goto(`${server.baseUrl}/fields`)
-    await page.getByTestId('farm-map').locator('canvas').first().waitFor()
+    await mapLoaded(page)
     await page.getByTestId('goto').fill(`${lat.toFixed(4)}, ${lon}`)
     await page.getByTestId('goto').press('Enter')
-    await page.waitForTimeout(600)
     const map = await mapFrame(page)
     const haShown = async () => Number(/([\d.,]+) ha/.exec((await page.getByTestId('field-area').textContent()) ?? '')![1].replace(/,/g, ''))
 
