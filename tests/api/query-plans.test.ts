@@ -204,5 +204,9 @@ describe('hot queries read by index', () => {
     const plans = await plansOf(statements)
     expect(plans.some((p) => /skip locked/i.test(p.sql))).toBe(true)
     expect(fullScans(plans)).toEqual([])
+    // The first look for jobs of no field (deliveries, feeds) goes through (field_id, status),
+    // so that it reads and locks no queued forecast job.
+    const noField = plans.find((p) => /skip locked/i.test(p.sql) && /field_id` is null/i.test(p.sql))
+    expect(noField?.plan.map((r) => r.key)).toEqual(['jobs_field_idx'])
   })
 })

@@ -1,7 +1,7 @@
 // Queries on background job rows. Claiming uses SELECT ... FOR UPDATE SKIP LOCKED inside a
 // transaction, so several processes on one database never take the same job; enqueueing
 // supersedes (or keeps) queued jobs with the same dedupe key.
-import { and, asc, count, desc, eq, gte, inArray, isNotNull, lt, lte, min, notInArray, or, sql, sum, type SQL } from 'drizzle-orm'
+import { and, asc, count, desc, eq, gte, inArray, isNotNull, isNull, lt, lte, min, notInArray, or, sql, sum, type SQL } from 'drizzle-orm'
 import type { JobStatus } from '../../../shared/schemas/jobs.ts'
 import type { DbOrTx } from '../index.ts'
 import { farms, users } from '../schema.ts'
@@ -101,30 +101,39 @@ export function jobsRepository(db: DbOrTx) {
      * Claims the next due job for `workerId`: locks candidate rows with SKIP LOCKED (rows
      * another transaction holds are passed over, never waited for), skips a job whose
      * dedupe key already has a running job (one recompute of a field at a time), and
-     * marks the chosen one running. Call inside a transaction.
+     * marks the chosen one running. Jobs of no field (plan deliveries, feed fetches, the
+     * nightly and new-day checks: short, and often awaited by a person) go first, so that
+     * a plan sent during a refresh of every field does not wait behind it; then the oldest
+     * due job. Call inside a transaction.
      */
     async claimNext(workerId: string, kinds?: readonly string[]): Promise<JobRow | null> {
       const now = new Date()
       const due: SQL[] = [eq(jobs.status, 'queued'), lte(jobs.runAfter, now)]
       if (kinds && kinds.length) due.push(inArray(jobs.kind, [...kinds]))
-      const candidates = await db
-        .select()
-        .from(jobs)
-        .where(and(...due))
-        .orderBy(asc(jobs.runAfter), asc(jobs.id))
-        .limit(20)
-        .for('update', { skipLocked: true })
-      if (candidates.length === 0) return null
-      const keys = [...new Set(candidates.map((c) => c.dedupeKey).filter((k): k is string => k !== null))]
-      const busy = new Set<string>()
-      if (keys.length) {
-        const running = await db
-          .select({ key: jobs.dedupeKey })
+      const lockDue = (extra?: SQL) =>
+        db
+          .select()
           .from(jobs)
-          .where(and(inArray(jobs.dedupeKey, keys), eq(jobs.status, 'running')))
-        for (const r of running) if (r.key) busy.add(r.key)
+          .where(and(...due, extra))
+          .orderBy(asc(jobs.runAfter), asc(jobs.id))
+          .limit(20)
+          .for('update', { skipLocked: true })
+      /** The first candidate whose dedupe key has no running job. */
+      const firstFree = async (candidates: JobRow[]): Promise<JobRow | undefined> => {
+        const keys = [...new Set(candidates.map((c) => c.dedupeKey).filter((k): k is string => k !== null))]
+        const busy = new Set<string>()
+        if (keys.length) {
+          const running = await db
+            .select({ key: jobs.dedupeKey })
+            .from(jobs)
+            .where(and(inArray(jobs.dedupeKey, keys), eq(jobs.status, 'running')))
+          for (const r of running) if (r.key) busy.add(r.key)
+        }
+        return candidates.find((c) => c.dedupeKey === null || !busy.has(c.dedupeKey))
       }
-      const job = candidates.find((c) => c.dedupeKey === null || !busy.has(c.dedupeKey))
+      // The first read goes through the (field_id, status) index: no forecast job's row is
+      // read or locked by it.
+      const job = (await firstFree(await lockDue(isNull(jobs.fieldId)))) ?? (await firstFree(await lockDue()))
       if (!job) return null
       await db
         .update(jobs)

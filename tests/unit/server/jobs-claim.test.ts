@@ -75,6 +75,21 @@ describe('claiming', () => {
   })
 })
 
+describe('claim order', () => {
+  it('takes a due job of no field (a delivery, a feed) before older field recomputes', async () => {
+    const [fieldId] = await ensureForecastFields(a.db, 1)
+    const kind = `${KIND}-order`
+    const older: number[] = []
+    for (let i = 0; i < 3; i++) older.push((await enqueueJob(storeA, { kind, fieldId, payload: { i } }, 'supersede')).job.id)
+    const delivery = (await enqueueJob(storeA, { kind: `${kind}-mail`, payload: {} }, 'supersede')).job
+    const kinds = [kind, `${kind}-mail`]
+    expect((await storeA.transaction((r) => r.jobs.claimNext('w1:1:x', kinds)))?.id).toBe(delivery.id)
+    // Then the field jobs, oldest first.
+    for (const id of older) expect((await storeA.transaction((r) => r.jobs.claimNext('w1:1:x', kinds)))?.id).toBe(id)
+    expect(await storeA.transaction((r) => r.jobs.claimNext('w1:1:x', kinds))).toBeNull()
+  })
+})
+
 describe('enqueue modes', () => {
   it('supersede marks the queued job of the key superseded', async () => {
     const kind = `${KIND}-sup`
