@@ -158,7 +158,9 @@ export async function signIn(page: Page, baseUrl: string, email: string, passwor
   await page.getByLabel('E-mail', { exact: true }).fill(email)
   await page.getByLabel('Password', { exact: true }).fill(password)
   await page.getByRole('button', { name: 'Sign in' }).click()
-  // The user menu shows on every screen size (on a phone the navigation waits behind "Menu").
+  // The start page has been reached (a click before the redirect lands would be undone by
+  // it); the user menu shows on every screen size (on a phone the navigation waits behind "Menu").
+  await page.waitForURL((url) => !url.pathname.startsWith('/sign-in'))
   await page.getByTestId('user-menu').waitFor()
 }
 
