@@ -58,17 +58,19 @@ export async function forecastInputsOf(store: Store, fieldId: number, settings: 
   return { ...inputs, window, version }
 }
 
+/** Whether a field's stored week covers exactly this window: its hour count and first hour. */
+export function storedWeekHoldsWindow(
+  meta: StoredForecastMeta | undefined,
+  window: { startMs: number; hours: number },
+): meta is StoredForecastMeta {
+  return meta !== undefined && meta.hours === window.hours && meta.firstHour?.getTime() === window.startMs
+}
+
 /** Whether a field's stored week is complete, of this window and all of this inputs version. */
 export function storedWeekIsCurrent(
   meta: StoredForecastMeta | undefined,
   window: { startMs: number; hours: number },
   version: string,
 ): boolean {
-  return (
-    meta !== undefined &&
-    meta.hours === window.hours &&
-    meta.firstHour?.getTime() === window.startMs &&
-    meta.minVersion === version &&
-    meta.maxVersion === version
-  )
+  return storedWeekHoldsWindow(meta, window) && meta.minVersion === version && meta.maxVersion === version
 }

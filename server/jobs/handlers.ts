@@ -7,7 +7,7 @@ import { forecastWindow } from '../../shared/schemas/forecast.ts'
 import { allFarmsWindowSpan } from '../forecast/windows.ts'
 import { withDeadlockRetry } from '../db/retry.ts'
 import { emit } from '../events.ts'
-import { engineSettings, forecastInputsOf, storedWeekIsCurrent } from '../forecast/fieldInputs.ts'
+import { engineSettings, forecastInputsOf, storedWeekHoldsWindow, storedWeekIsCurrent } from '../forecast/fieldInputs.ts'
 import { engineTask } from '../forecast/inputs.ts'
 import { toStoredHour } from '../forecast/storedHour.ts'
 import { enqueueForecast, enqueueJob } from '../queue/enqueue.ts'
@@ -133,10 +133,7 @@ export const newDayHandler: JobHandler = async (ctx) => {
     const window = forecastWindow(nowMs, zone)
     const fieldList = await store.repos.forecasts.fieldIds({ farmId })
     const meta = await store.repos.forecasts.storedMeta(fieldList.map((f) => f.id))
-    const behind = fieldList.filter((f) => {
-      const m = meta.get(f.id)
-      return !m || m.hours !== window.hours || m.firstHour?.getTime() !== window.startMs
-    })
+    const behind = fieldList.filter((f) => !storedWeekHoldsWindow(meta.get(f.id), window))
     if (behind.length) farmsRolled++
     for (const f of behind) {
       const { created } = await enqueueForecast(store, { fieldId: f.id, farmId, reason: 'new-day' }, 'reuse-pending')

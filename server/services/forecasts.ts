@@ -14,6 +14,7 @@ import {
 import { canSeeFarm } from '../auth/access.ts'
 import type { PendingForecastJob, StoredForecastMeta } from '../db/repositories/forecasts.ts'
 import type { JobRow, WorkTypeRow } from '../db/schema-planning.ts'
+import { storedWeekHoldsWindow } from '../forecast/fieldInputs.ts'
 import { toForecastHour } from '../forecast/storedHour.ts'
 import { notFound } from '../http/errors.ts'
 import type { ServiceContext } from './context.ts'
@@ -31,9 +32,7 @@ export function isStale(
   zone: string,
 ): boolean {
   if (pending) return true
-  if (!meta || !meta.firstHour) return true
-  const window = forecastWindow(nowMs, zone)
-  return meta.hours !== window.hours || meta.firstHour.getTime() !== window.startMs || meta.minVersion !== meta.maxVersion
+  return !storedWeekHoldsWindow(meta, forecastWindow(nowMs, zone)) || meta.minVersion !== meta.maxVersion
 }
 
 /**
