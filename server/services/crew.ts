@@ -1,8 +1,10 @@
 // The cab view: the signed-in user's week on the machines they run (machines.operator_user_id),
 // with what the page needs offline: each pass with its field's shape and the stored hour
-// states of its work type over the week. Done and cancelled passes of the last half day
-// stay in the list so the crew sees what they finished.
-import { HOUR_MS, floorHour } from '../../shared/planning/index.ts'
+// states of its work type over the week, each hour flagged when it is a night hour at the
+// field's centroid (the cab's window reading keeps to daylight; shared/planning/crew.ts).
+// Done and cancelled passes of the last half day stay in the list so the crew sees what
+// they finished.
+import { HOUR_MS, floorHour, nightFlagged } from '../../shared/planning/index.ts'
 import type { SessionUser } from '../../shared/schemas/auth.ts'
 import type { CrewPass, CrewWeek } from '../../shared/schemas/crew.ts'
 import type { Boundary } from '../../shared/schemas/geo.ts'
@@ -39,11 +41,12 @@ export function createCrewService(ctx: ServiceContext) {
         const field = await repos.fields.findById(row.fieldId)
         if (!field) continue
         const ofField = hourRows.filter((h) => h.fieldId === row.fieldId)
+        const centroid = { latDeg: field.centroidLat, lonDeg: field.centroidLon }
         passes.push({
           ...toPass(row),
           boundary: JSON.parse(field.boundary) as Boundary,
-          centroid: { latDeg: field.centroidLat, lonDeg: field.centroidLon },
-          hours: hourStates(ofField, row.workTypeId),
+          centroid,
+          hours: nightFlagged(hourStates(ofField, row.workTypeId), centroid),
         })
       }
       return {

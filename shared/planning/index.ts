@@ -6,8 +6,8 @@ export type { FindWindowsInput, FoundWindow, PlanningHour, PlanningHourState } f
 export { passRisk, coveredHours, requiresClear } from './risk'
 export type { RiskInput, RiskResult } from './risk'
 export { estimateDurationMin, DURATION_STEP_MIN } from './duration'
-export { isNightHour, sunAltitudeDeg, SUN_HORIZON_DEG } from './night'
-export type { GeoPoint } from './night'
+export { isNightHour, sunAltitudeDeg, sunTimes, SUN_HORIZON_DEG } from './night'
+export type { GeoPoint, SunTimes } from './night'
 export {
   HOUR_MS,
   MINUTE_MS,
@@ -22,5 +22,5 @@ export {
   overlaps,
 } from './time'
 export type { TimeSpan } from './time'
-export { openSpan, workable } from './crew'
-export type { OpenSpan } from './crew'
+export { nightFlagged, openSpan, plannedAtNight, workable } from './crew'
+export type { CrewReadingHour, OpenSpan, OpenSpanRule } from './crew'

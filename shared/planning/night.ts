@@ -32,3 +32,23 @@ export function sunAltitudeDeg(ms: number, point: GeoPoint): number {
 export function isNightHour(hourStartMs: number, point: GeoPoint): boolean {
   return sunAltitudeDeg(hourStartMs + HOUR_MS / 2, point) < SUN_HORIZON_DEG
 }
+
+export interface SunTimes {
+  /** sunrise (UTC ms), null where the sun does not rise that day (polar night or day) */
+  sunriseMs: number | null
+  /** sunset (UTC ms), null where the sun does not set that day */
+  sunsetMs: number | null
+}
+
+/**
+ * Sunrise and sunset of the day whose solar noon is nearest to `ms`, seen from `point`:
+ * suncalc's `getTimes`, whose sunrise and sunset are the sun's centre at -0.833 deg, the
+ * same altitude as the night rule above.
+ * @example sunTimes(Date.UTC(2026, 11, 5, 18), { latDeg: 42, lonDeg: -93.5 })
+ *   // -> { sunriseMs: 13:28 UTC (07:28 CST), sunsetMs: 22:44 UTC (16:44 CST), to the minute }
+ */
+export function sunTimes(ms: number, point: GeoPoint): SunTimes {
+  const times = SunCalc.getTimes(new Date(ms), point.latDeg, point.lonDeg)
+  const valid = (d: Date) => (Number.isFinite(d.getTime()) ? d.getTime() : null)
+  return { sunriseMs: valid(times.sunrise), sunsetMs: valid(times.sunset) }
+}

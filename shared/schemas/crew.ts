@@ -1,6 +1,7 @@
 // The API contract of the cab view: the signed-in crew member's week, everything the page
 // needs to work without signal (passes, the hour states of each pass's work type on its
-// field, the field shapes), fetched in one request and kept on the device.
+// field with each hour's night flag, the field shapes), fetched in one request and kept on
+// the device.
 import type { Boundary } from './geo'
 import type { Pass } from './passes'
 
@@ -8,6 +9,12 @@ export interface CrewHour {
   /** UTC hour start */
   startMs: number
   state: 'clear' | 'tight' | 'closed'
+  /**
+   * a night hour at the field's centroid (shared/planning/night.ts), computed by the
+   * server; a week kept by an older version of the page has none (shared/planning/crew.ts
+   * `nightFlagged` fills it in)
+   */
+  night: boolean
 }
 
 export interface CrewPass extends Pass {

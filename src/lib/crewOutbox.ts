@@ -5,9 +5,12 @@
  *
  * The outbox is a list in the order the changes were made; `version` is the pass version
  * the change was made from (the server refuses it with 409 when the pass has changed).
+ * A week kept by an older version of the page has hours without their night flag; it is
+ * read with the flag filled in by the same rule (shared/planning/crew.ts `nightFlagged`).
  */
 import { createStore, del, get, set, type UseStore } from 'idb-keyval'
-import type { CrewWeek } from '@shared/schemas/crew'
+import { nightFlagged, type CrewReadingHour } from '@shared/planning'
+import type { CrewPass, CrewWeek } from '@shared/schemas/crew'
 import type { PassStatus } from '@shared/schemas/passes'
 
 export interface SavedWeek {
@@ -39,7 +42,15 @@ function db(): UseStore {
 const weekKey = (userId: number) => `week:${userId}`
 const outboxKey = (userId: number) => `outbox:${userId}`
 
-export const loadWeek = (userId: number) => get<SavedWeek>(weekKey(userId), db())
+/** A week as any version of the page kept it: the hours' night flags may be missing. */
+type KeptWeek = Omit<CrewWeek, 'passes'> & { passes: Array<Omit<CrewPass, 'hours'> & { hours: CrewReadingHour[] }> }
+
+export async function loadWeek(userId: number): Promise<SavedWeek | undefined> {
+  const kept = await get<{ week: KeptWeek; savedAtMs: number }>(weekKey(userId), db())
+  if (!kept) return undefined
+  const passes = kept.week.passes.map((p) => ({ ...p, hours: nightFlagged(p.hours, p.centroid) }))
+  return { savedAtMs: kept.savedAtMs, week: { ...kept.week, passes } }
+}
 export const saveWeek = (userId: number, saved: SavedWeek) => set(weekKey(userId), saved, db())
 export const loadOutbox = async (userId: number) => (await get<OutboxItem[]>(outboxKey(userId), db())) ?? []
 export const saveOutbox = (userId: number, items: OutboxItem[]) =>

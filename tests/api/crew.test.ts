@@ -1,8 +1,12 @@
 // The cab view's API: a crew member's week on the machines they run, pass status with who
 // and when (planned, confirmed, started, done, cancelled), notes from the field, and the
 // version check that refuses a change made from an outdated copy (a change queued offline
-// while the office moved the pass) with 409 instead of overwriting it.
+// while the office moved the pass) with 409 instead of overwriting it; each hour says
+// whether it is a night hour at the field.
+import SunCalc from 'suncalc'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { HOUR_MS } from '../../shared/planning/index.ts'
+import type { SessionUser } from '../../shared/schemas/auth.ts'
 import type { CrewWeek } from '../../shared/schemas/crew.ts'
 import type { Pass } from '../../shared/schemas/passes.ts'
 import { composePlan, mondayOf } from '../../server/services/plansCompose.ts'
@@ -61,6 +65,9 @@ describe('the crew week', () => {
     // The stored planting hours of the field, in order, as written.
     expect(listed.hours.slice(0, 5).map((h) => h.state)).toEqual(['clear', 'clear', 'clear', 'tight', 'closed'])
     expect(listed.hours[0].startMs).toBe(hoursFromNow(0))
+    // Every hour carries its night flag; 48 hours at 42 N hold both days and nights.
+    expect(listed.hours.every((h) => typeof h.night === 'boolean')).toBe(true)
+    expect(new Set(listed.hours.map((h) => h.night))).toEqual(new Set([true, false]))
     expect(Date.parse(week.generatedAt)).toBeGreaterThan(Date.now() - 60_000)
 
     // The demo contractor runs other machines: this pass is not in their week.
@@ -163,5 +170,48 @@ describe('pass status', () => {
     expect(line).toBeGreaterThanOrEqual(0)
     expect(plan.text).toMatch(/; Done \w{3} \d{2}:\d{2}/)
     expect(plan.html).toContain('Done ')
+  })
+})
+
+describe('night hours in the crew week', () => {
+  it('flags each hour by the sun at the field centroid, for a known place and date', async () => {
+    // An invented field in northern Illinois; Sat 5 Dec 2026, 00:00 CST (06:00 UTC) on, two days.
+    const place = await makeField(server, w, w.northFarmId, { areaHa: 10, latDeg: 42.0, lonDeg: -87.9 })
+    const row = (await server.repos.fields.findById(place.id))!
+    const from = Date.UTC(2026, 11, 5, 6)
+    await storeForecast(server, place.id, from, { [w.workTypes.planting.id]: 'C'.repeat(48) })
+    const passId = await server.repos.passes.insert({
+      fieldId: place.id,
+      workTypeId: w.workTypes.planting.id,
+      machineId: machine.id,
+      startAt: new Date(Date.UTC(2026, 11, 5, 15)),
+      durationMin: 120,
+      status: 'planned',
+      atRisk: false,
+      atRiskReason: null,
+      suggestedStartAt: null,
+      notes: '',
+      createdBy: null,
+    })
+    // The week as the server builds it at 08:00 CST that Saturday.
+    const me = (await operator.client.get('/api/auth/me')).body as SessionUser
+    const week = await server.app.locals.services.crew.week(me, Date.UTC(2026, 11, 5, 14))
+    const listed = week.passes.find((p) => p.id === passId)!
+    expect(listed.hours.map((h) => h.startMs)).toEqual(Array.from({ length: 48 }, (_, i) => from + i * HOUR_MS))
+
+    // Reference: suncalc's getTimes at the centroid (sunrise and sunset = the sun's centre at
+    // -0.833 deg, the usual refraction of 0.567 deg plus the semi-diameter of 0.266 deg;
+    // suncalc 1.9.0 README and its `times` table, after Astronomy Answers,
+    // https://aa.quae.nl/en/reken/zonpositie.html). A night hour's middle lies before that
+    // day's sunrise or after its sunset; here both lie 8 min or more from any hour's middle.
+    const night = (startMs: number) => {
+      const mid = startMs + HOUR_MS / 2
+      const { sunrise, sunset } = SunCalc.getTimes(new Date(mid), row.centroidLat, row.centroidLon)
+      return mid < sunrise.getTime() || mid > sunset.getTime()
+    }
+    expect(listed.hours.map((h) => h.night)).toEqual(listed.hours.map((h) => night(h.startMs)))
+    // Saturday's day hours: 07:00-16:00 CST (sunrise 07:05, sunset 16:21 CST), nine of them.
+    const day = listed.hours.slice(0, 24).filter((h) => !h.night)
+    expect(day.map((h) => h.startMs)).toEqual(Array.from({ length: 9 }, (_, i) => Date.UTC(2026, 11, 5, 13 + i)))
   })
 })

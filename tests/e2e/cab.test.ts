@@ -2,6 +2,7 @@
 // signal (the service worker installs, the week is kept on the device), loses the signal,
 // opens the page again and still reads the week, marks a pass done, and the change reaches
 // the server when the signal returns; the office then sees it done with who and when.
+// Asking for the device position again works after the browser refused it once.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Pass } from '@shared/schemas/passes'
 import { openDatabase } from '../../server/db/index.ts'
@@ -66,6 +67,18 @@ describe('the cab view without signal', () => {
     expect(await card.getByTestId('cab-now').textContent()).toContain('Clear')
     expect(await card.getByTestId('cab-window').textContent()).toContain('The window holds for the whole pass')
     await screenshot(page, 'cab-online-phone')
+
+    // The browser refuses the position (no permission given): a short note, and the button
+    // comes back; once allowed, the same button shows the position.
+    const locate = card.getByTestId('cab-locate')
+    await locate.click()
+    await card.getByText('Position not shared', { exact: false }).waitFor()
+    await locate.waitFor()
+    await context.grantPermissions(['geolocation'], { origin: server.baseUrl })
+    await context.setGeolocation({ latitude: 42.05, longitude: -93.62, accuracy: 4 })
+    await locate.click()
+    await card.getByText('Your position, within about 4 m').waitFor()
+    expect(await locate.count()).toBe(0)
 
     // No signal: the page opens again from the device and still shows the week.
     await context.setOffline(true)
