@@ -12,6 +12,8 @@ import {
   type FieldForecastInput,
   type Satellite,
   type TerrainGrid,
+  TERRAIN_MAX_DISTANCE_M,
+  TERRAIN_REFRACTION_K,
 } from '../../shared/precision/index'
 import { ANTENNA_M, FIELD, HOURS, MASK_DEG, OBSTRUCTIONS, SAMPLE_COUNT, SIGMA_UERE_M, START_MS, STEP_MIN } from './scenario'
 
@@ -47,7 +49,7 @@ export function terrainStage(satellites: Satellite[], runs: number): Array<[stri
   const input: FieldForecastInput = {
     field: FIELD, obstructions: OBSTRUCTIONS, antennaHeightM: ANTENNA_M, satellites, startMs: START_MS, hours: HOURS,
     stepMin: STEP_MIN, maskDeg: MASK_DEG, sigmaUereM: SIGMA_UERE_M, workTypes: DEMO_WORK_TYPES, sampleCount: SAMPLE_COUNT,
-    terrain: { grid, options: { maxDistanceM: 5000, refractionK: 0.13 } },
+    terrain: { grid, options: { maxDistanceM: TERRAIN_MAX_DISTANCE_M, refractionK: TERRAIN_REFRACTION_K } },
   }
   fieldTerrainHorizons(input) // warm-up
   const tHorizon: number[] = []

@@ -12,9 +12,12 @@ import {
   localPlane,
   nominalConstellation,
   skyView,
+  TERRAIN_MAX_DISTANCE_M,
+  TERRAIN_REFRACTION_K,
   terrainHorizons,
   type TerrainGrid,
 } from '@shared/precision'
+import { TERRAIN_SETTINGS } from '@shared/schemas/terrain'
 
 const ORIGIN = { latDeg: 47.2, lonDeg: 9.4 }
 const RAD = 180 / Math.PI
@@ -38,7 +41,7 @@ describe('terrain horizon: closed forms', () => {
     // The cone's flank (slope 0.6) is steeper than the line of sight to the apex, so the
     // apex is the highest angle: atan((300 - 2 - d^2/2R) / d), d = 2000 m.
     const g = grid(10, 3000, (x, y) => Math.max(0, 300 * (1 - Math.hypot(x, y - 2000) / 500)))
-    const [mask] = [terrainHorizons(g, [ORIGIN], 2, { maxDistanceM: 5000 })]
+    const [mask] = [terrainHorizons(g, [ORIGIN], 2, { maxDistanceM: 5000, refractionK: 0 })]
     const want = expectedDeg(298, 2000)
     expect(mask[0]).toBeCloseTo(want, 6)
     expect(mask[359]).toBeCloseTo(want, 6) // the ray at 0 deg closes bin 359 as well
@@ -48,12 +51,12 @@ describe('terrain horizon: closed forms', () => {
     expect(mask[180]).toBe(0)
   })
 
-  it('a straight plateau edge 8 km east, with and without refraction (k = 0.13)', () => {
+  it('a straight plateau edge 8 km east, with and without refraction (k = 0.13, the default)', () => {
     // Flat ground 0 up to x = 8000 m, a plateau 200 m high beyond: a straight ridge line.
     // Square to it (azimuth 90) the angle is atan((200 - 2 - (1-k) d^2/2R) / d), d = 8000 m;
     // the drop is 5.02 m without refraction and 4.37 m with k = 0.13.
     const g = grid(20, 10_000, (x) => (x >= 8000 ? 200 : 0))
-    const plain = terrainHorizons(g, [ORIGIN], 2, { maxDistanceM: 9000 })
+    const plain = terrainHorizons(g, [ORIGIN], 2, { maxDistanceM: 9000, refractionK: 0 })
     const refracted = terrainHorizons(g, [ORIGIN], 2, { maxDistanceM: 9000, refractionK: 0.13 })
     expect(plain[90]).toBeCloseTo(expectedDeg(198, 8000), 6)
     expect(plain[89]).toBeCloseTo(expectedDeg(198, 8000), 6) // bin [89, 90) ends at the square ray
@@ -61,8 +64,12 @@ describe('terrain horizon: closed forms', () => {
     expect(refracted[90]).toBeGreaterThan(plain[90])
     // Bin [60, 61) is highest on its ray at 61 deg, 29 deg off square, where the edge is at
     // d = 8000 / cos(29 deg); off the grid nodes the edge is read within one 20 m step.
-    const far = terrainHorizons(g, [ORIGIN], 2, { maxDistanceM: 10_000 })
+    const far = terrainHorizons(g, [ORIGIN], 2, { maxDistanceM: 10_000, refractionK: 0 })
     expect(Math.abs(far[60] - expectedDeg(198, 8000 / Math.cos(29 / RAD)))).toBeLessThan(0.01)
+    // Without options: the one default k = 0.13, the same as the server's settings.
+    expect(terrainHorizons(g, [ORIGIN], 2, { maxDistanceM: 9000 })).toEqual(refracted)
+    expect(TERRAIN_REFRACTION_K).toBe(0.13)
+    expect(TERRAIN_SETTINGS).toEqual({ maxDistanceM: TERRAIN_MAX_DISTANCE_M, refractionK: TERRAIN_REFRACTION_K })
     // Beyond the reach the plateau does not count.
     const short = terrainHorizons(g, [ORIGIN], 2, { maxDistanceM: 7000 })
     expect(short[90]).toBe(0)
@@ -70,7 +77,7 @@ describe('terrain horizon: closed forms', () => {
 
   it('nodata is skipped and a point off the grid has no terrain horizon', () => {
     const g = grid(10, 1000, (x) => (x >= 500 ? (x < 700 ? Number.NaN : 100) : 0))
-    const [mask] = [terrainHorizons(g, [ORIGIN], 0, { maxDistanceM: 2000 })]
+    const [mask] = [terrainHorizons(g, [ORIGIN], 0, { maxDistanceM: 2000, refractionK: 0 })]
     expect(mask[90]).toBeCloseTo(expectedDeg(100, 700), 6)
     const plane = localPlane(ORIGIN.latDeg, ORIGIN.lonDeg)
     const far = fromPlane(plane, 5000, 0)
