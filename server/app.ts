@@ -137,7 +137,7 @@ export function createApp(deps: AppDeps): SkyfurrowApp {
   api.use(obstructionRoutes(services))
   api.use(orbitRoutes(services))
   api.use(importRoutes(services))
-  api.use(terrainRoutes(services))
+  api.use(terrainRoutes(services, { maxFileBytes: config.terrainFileMaxBytes }))
   api.use('/outages', outageRoutes(services))
   api.use('/orbit-feed', orbitFeedRoutes(services))
   api.use('/service-levels', serviceLevelRoutes(services))

@@ -57,6 +57,7 @@ const envSchema = z.object({
   JOBS_ENABLED: optionalString.pipe(z.enum(['true', 'false', '1', '0']).optional()),
   FORECAST_STEP_MIN: intIn(1, 60, 5),
   FORECAST_SAMPLES: intIn(8, 400, 64),
+  TERRAIN_FILE_MAX_MB: intIn(1, 256, 64),
   PLAN_LINK_SECRET: optionalString.pipe(z.string().min(32, 'PLAN_LINK_SECRET must have at least 32 characters').optional()),
   NIGHTLY_REFRESH_TIME: optionalString.pipe(
     z
@@ -92,6 +93,8 @@ export interface Config {
   /** Minutes between forecast epochs and the number of sample points per field. */
   forecastStepMin: number
   forecastSampleCount: number
+  /** Largest elevation model file accepted (bytes); larger uploads are refused with 413. */
+  terrainFileMaxBytes: number
   /** Server-local time ('HH:MM') of the nightly refresh that rolls the window forward. */
   nightlyRefreshTime: string
   /** Key of the HMAC-SHA256 that signs the opt-out links of plan e-mails. */
@@ -156,6 +159,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     jobsEnabled: e.JOBS_ENABLED === undefined || e.JOBS_ENABLED === 'true' || e.JOBS_ENABLED === '1',
     forecastStepMin: e.FORECAST_STEP_MIN,
     forecastSampleCount: e.FORECAST_SAMPLES,
+    terrainFileMaxBytes: e.TERRAIN_FILE_MAX_MB * 1024 * 1024,
     nightlyRefreshTime: e.NIGHTLY_REFRESH_TIME ?? '02:00',
     planLinkSecret: e.PLAN_LINK_SECRET ?? persistedSecret(),
   }

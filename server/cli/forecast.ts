@@ -6,7 +6,8 @@
  * --terrain FILE (GeoTIFF or ESRI ASCII grid; FILE.prj beside an ASCII grid names its CRS,
  * without one it is read as WGS-84 degrees, heights in metres): the terrain horizon joins the
  * obstructions; point mode JSON then also carries "terrainHorizon": [{ azimuthDeg, elevationDeg }]
- * (bin k covers azimuths [k, k+1)).
+ * (bin k covers azimuths [k, k+1)). --terrain-reach (m, default 5000) and --refraction (k,
+ * default 0.13) default to the engine's values, the same as the server's.
  * Prints nothing but the result on stdout; skipped orbit records are listed on stderr.
  * Exit status 2 with a one-line message on bad arguments or unreadable orbit files.
  */
@@ -32,7 +33,7 @@ import {
 import { createSgp4Options } from './propagator'
 import { geometryBox, localTerrainGrid } from '../terrain/grid.ts'
 import { readElevationModel, TerrainFileError } from '../terrain/readers.ts'
-import { terrainHorizonInto, TERRAIN_MAX_DISTANCE_M, type TerrainGrid } from '../../shared/precision/index'
+import { terrainHorizonInto, TERRAIN_MAX_DISTANCE_M, TERRAIN_REFRACTION_K, type TerrainGrid } from '../../shared/precision/index'
 import { fieldBaseline, parseBaseArgs, pointBaseline } from './baselineArgs'
 
 const USAGE =
@@ -268,7 +269,7 @@ async function main(argv: string[]): Promise<void> {
   const obstructions = values.obstructions !== undefined ? (readJson('obstructions', values.obstructions as string) as FeatureCollection) : null
   if (obstructions && obstructions.type !== 'FeatureCollection') throw new UsageError(`--obstructions ${String(values.obstructions)}: expected a GeoJSON FeatureCollection`)
   const reachM = num('terrain-reach', values['terrain-reach'] as string | undefined, TERRAIN_MAX_DISTANCE_M, (v) => v > 0 && v <= 50_000, 'reach must be in (0, 50000] m')
-  const refractionK = num('refraction', values.refraction as string | undefined, 0, (v) => v >= 0 && v < 1, 'refraction coefficient must be in [0, 1)')
+  const refractionK = num('refraction', values.refraction as string | undefined, TERRAIN_REFRACTION_K, (v) => v >= 0 && v < 1, 'refraction coefficient must be in [0, 1)')
   const terrainFile = values.terrain as string | undefined
   const terrainGeometry = field ? fieldGeometry(field) : { type: 'Point', coordinates: [lon, lat] }
   const terrainGrid = terrainFile ? await loadTerrain(terrainFile, terrainGeometry as { coordinates: unknown }, reachM) : null

@@ -10,9 +10,10 @@ const formatMb = (bytes: number) => `${Math.round((bytes / MB) * 10) / 10} MB`
 
 /**
  * Accepts one file in the multipart field `field` (at most `maxBytes`) and a few text fields.
- * The file lands in req.file (buffer, originalname); the text fields in req.body.
+ * The file lands in req.file (buffer, originalname); the text fields in req.body. `what`
+ * names the file in the 413 sentence ("The elevation model file is larger than 64 MB.").
  */
-export function singleFileUpload(field: string, maxBytes: number): RequestHandler {
+export function singleFileUpload(field: string, maxBytes: number, what = 'file'): RequestHandler {
   const upload = multer({
     storage: multer.memoryStorage(),
     limits: { fileSize: maxBytes, files: 1, fields: 20, fieldSize: 256 * 1024, parts: 25 },
@@ -23,7 +24,7 @@ export function singleFileUpload(field: string, maxBytes: number): RequestHandle
       if (err instanceof multer.MulterError) {
         switch (err.code) {
           case 'LIMIT_FILE_SIZE':
-            return next(new HttpError(413, 'payload_too_large', `The file is larger than ${formatMb(maxBytes)}.`, { [field]: `At most ${formatMb(maxBytes)}.` }))
+            return next(new HttpError(413, 'payload_too_large', `The ${what} is larger than ${formatMb(maxBytes)}.`, { [field]: `At most ${formatMb(maxBytes)}.` }))
           case 'LIMIT_UNEXPECTED_FILE':
           case 'LIMIT_FILE_COUNT':
             return next(badRequest(`Send one file, in the form field "${field}".`, { [field]: `Send one file, in the form field "${field}".` }))

@@ -8,16 +8,17 @@ import { terrainHorizonQuerySchema } from '../../shared/schemas/terrain.ts'
 import { farmEditorRoles } from '../auth/access.ts'
 import { currentAuth, requireAuth, requireRole } from '../auth/middleware.ts'
 import { parse } from '../http/validate.ts'
-import { MB, singleFileUpload } from '../imports/upload.ts'
+import { singleFileUpload } from '../imports/upload.ts'
 import type { Services } from '../services/index.ts'
 
-/** Upload limit: a 2000 x 2000 ASCII grid with a few digits per height fits. */
-export const TERRAIN_FILE_MAX_BYTES = 64 * MB
-
-export function terrainRoutes(services: Services): Router {
+/**
+ * `maxFileBytes`: the upload limit (TERRAIN_FILE_MAX_MB, 64 MB by default: a 2000 x 2000
+ * ASCII grid with a few digits per height fits); larger files are refused with 413.
+ */
+export function terrainRoutes(services: Services, options: { maxFileBytes: number }): Router {
   const router = Router()
   const terrain = services.terrain
-  const upload = singleFileUpload('file', TERRAIN_FILE_MAX_BYTES)
+  const upload = singleFileUpload('file', options.maxFileBytes, 'elevation model file')
 
   router.get('/farms/:id/terrain', requireAuth, async (req, res) => {
     const { id } = parse(idParamsSchema, req.params, 'address')

@@ -44,7 +44,7 @@ export type {
   WorkType,
 } from './forecast'
 export { fieldTerrainHorizons } from './forecast'
-export { terrainHorizonInto, terrainHorizons, terrainGroundM, gridHeightAt, gridMaxHeight, checkTerrainGrid, combineHorizonInto, EARTH_MEAN_RADIUS_M, TERRAIN_MAX_DISTANCE_M } from './terrain'
+export { terrainHorizonInto, terrainHorizons, terrainGroundM, gridHeightAt, gridMaxHeight, checkTerrainGrid, combineHorizonInto, EARTH_MEAN_RADIUS_M, TERRAIN_MAX_DISTANCE_M, TERRAIN_REFRACTION_K } from './terrain'
 export type { TerrainGrid, TerrainInput, TerrainOptions } from './terrain'
 export { forecastPoint, skyView } from './sky'
 export type { PointEpoch, PointForecastInput, SatStatus, SkyViewInput, SkyView, SkySatellite } from './sky'

@@ -1,5 +1,6 @@
 // Elevation models (terrain) of a farm: what the API returns, and the horizon query.
 import { z } from 'zod'
+import { TERRAIN_MAX_DISTANCE_M, TERRAIN_REFRACTION_K } from '../precision/terrain'
 
 /** A farm's stored elevation model. */
 export const elevationModelSchema = z.object({
@@ -37,5 +38,5 @@ export interface TerrainHorizon {
   refractionK: number
 }
 
-/** Reach and refraction of the terrain horizon in the stored forecasts (k = 0.13: common practice). */
-export const TERRAIN_SETTINGS = { maxDistanceM: 5000, refractionK: 0.13 } as const
+/** Reach and refraction of the terrain horizon in the stored forecasts, the hour detail and the sky check: the engine's defaults. */
+export const TERRAIN_SETTINGS = { maxDistanceM: TERRAIN_MAX_DISTANCE_M, refractionK: TERRAIN_REFRACTION_K } as const

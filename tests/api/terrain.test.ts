@@ -1,9 +1,10 @@
 // Elevation models of a farm: upload (GeoTIFF written by the geotiff package, ESRI ASCII
 // grid), the refusals (not a TIFF, a TIFF without georeferencing, a model that misses the
-// farm, too many cells) with nothing stored, the terrain horizon of a point, removal, and
-// who may do what.
+// farm, too many cells, a file over the upload limit) with nothing stored, the terrain
+// horizon of a point, removal, and who may do what.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { clearListeners, on } from '../../server/events.ts'
+import { MB } from '../../server/imports/upload.ts'
 import { Client, demo, signIn, startTestServer, type TestServer } from '../support/server.ts'
 import { planeTiff, plainTiff } from '../support/tiff.ts'
 
@@ -55,6 +56,23 @@ describe('elevation model upload', () => {
     expect(big.status).toBe(400)
     expect(big.body.error.message).toMatch(/at most/)
 
+    expect((await crew.get(`/api/farms/${farmId}/terrain`)).body.model).toBeNull()
+    expect(changed).not.toContain(farmId)
+  })
+
+  it('refuses a file over the upload limit with 413 naming the limit; a file of the limit itself is read; nothing is stored', async () => {
+    // The limit is TERRAIN_FILE_MAX_MB (64 MB by default, tests/unit/server/config.test.ts);
+    // the same route on an app configured with 1 MB keeps the bodies small.
+    expect(server.config.terrainFileMaxBytes).toBeGreaterThanOrEqual(MB)
+    const small = await signIn(server.appWith({ terrainFileMaxBytes: MB }), demo.contractor)
+    const over = await upload(small, Buffer.alloc(MB + 1, 0x20), 'huge.asc')
+    expect(over.status).toBe(413)
+    expect(over.body.error.message).toBe('The elevation model file is larger than 1 MB.')
+    expect(over.body.error.fields.file).toBe('At most 1 MB.')
+    // Exactly at the limit the file is read (and refused here for what it holds, not its size).
+    const at = await upload(small, Buffer.alloc(MB, 0x20), 'blank.asc')
+    expect(at.status).toBe(400)
+    expect(at.body.error.message).toMatch(/neither a TIFF .* nor an ESRI ASCII grid/)
     expect((await crew.get(`/api/farms/${farmId}/terrain`)).body.model).toBeNull()
     expect(changed).not.toContain(farmId)
   })

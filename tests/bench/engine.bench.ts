@@ -9,7 +9,7 @@
  * 2b. The terrain stage (terrain.ts): 64 points over a 2000 x 2000 grid, and the week
  *    forecast with and without those horizons.
  * 3. The yardstick (yardstick.ts) and the engine on those same SGP4 inputs, and the ratio.
- * Options: --no-yardstick (skip part 3), --runs N.
+ * Options: --no-yardstick (skip part 3), --terrain-only (only part 2b), --runs N.
  * Benchmarks are not tests: nothing here fails on a slow machine.
  */
 import { createSingleThreadRuntime, eciToEcf, gstime, json2satrec, propagate } from 'satellite.js'
@@ -21,6 +21,7 @@ import { yardstick } from './yardstick'
 const args = process.argv.slice(2)
 const RUNS = Number(args[args.indexOf('--runs') + 1]) > 0 && args.includes('--runs') ? Number(args[args.indexOf('--runs') + 1]) : 5
 const withYardstick = !args.includes('--no-yardstick')
+const terrainOnly = args.includes('--terrain-only')
 const WARMUPS = 3
 
 function run(satellites: Satellite[], propagation?: PropagationOptions): { result: FieldForecast; wallMs: number; cpuMs: number } {
@@ -85,6 +86,10 @@ function engineRuns(label: string, sats: Satellite[], propagation?: PropagationO
 async function main() {
   console.log(`Skyfurrow engine benchmark: ${HOURS} h at ${STEP_MIN} min, ${SAMPLE_COUNT} sample points, nominal GPS+GLONASS+Galileo+BeiDou, ${OBSTRUCTIONS.features.length} obstructions`)
   console.log(`node ${process.version}, one thread`)
+  if (terrainOnly) {
+    table(`Terrain horizon (terrain.ts; median of ${RUNS} runs)`, terrainStage(nominalSatellites(), RUNS))
+    return
+  }
   const kepler = engineRuns('Engine, nominal constellations (embedded Keplerian model)', nominalSatellites())
   table(`Terrain horizon (terrain.ts; median of ${RUNS} runs)`, terrainStage(nominalSatellites(), RUNS))
 

@@ -38,25 +38,33 @@ export function plainTiff(width = 2, height = 2): Uint8Array {
   return new Uint8Array(buf)
 }
 
-/** A GeoTIFF in the WGS 84 UTM zone of (lonDeg, latDeg) (north), around (lonDeg, latDeg), written by geotiff.writeArrayBuffer: a tilted plane h = 400 + 0.01 (E - E0) - 0.02 (N - N0), one nodata cell. */
-export function planeTiff(lonDeg = 9.4, latDeg = 47.2) {
+/** Size of a test GeoTIFF: cells across and down, cell size (m). */
+export interface TiffGrid {
+  width: number
+  height: number
+  cellM: number
+}
+
+/**
+ * A GeoTIFF in the WGS 84 UTM zone of (lonDeg, latDeg) (north), centred on that point and
+ * written by geotiff.writeArrayBuffer: heights heightAt(e, n, cell) at the cell centres, e and
+ * n the UTM easting and northing (m) relative to the point's own, cell the row-major index
+ * (row 0 north); NaN becomes nodata (-9999).
+ */
+export function utmTiff(lonDeg: number, latDeg: number, heightAt: (eM: number, nM: number, cell: number) => number, size: TiffGrid = { width: 60, height: 50, cellM: 25 }) {
   const zone = Math.floor((lonDeg + 180) / 6) + 1
   const UTM = `+proj=utm +zone=${zone} +datum=WGS84 +units=m +no_defs`
-  const width = 60
-  const height = 50
+  const { width, height, cellM: cell } = size
   const [E0, N0] = proj4('+proj=longlat +datum=WGS84 +no_defs', UTM, [lonDeg, latDeg])
-  const cell = 25
   const left = Math.round(E0) - (width / 2) * cell
   const top = Math.round(N0) + (height / 2) * cell
   const values = new Float32Array(width * height)
   for (let j = 0; j < height; j++) {
     for (let i = 0; i < width; i++) {
-      const e = left + (i + 0.5) * cell
-      const n = top - (j + 0.5) * cell
-      values[j * width + i] = 400 + 0.01 * (e - E0) - 0.02 * (n - N0)
+      const v = heightAt(left + (i + 0.5) * cell - E0, top - (j + 0.5) * cell - N0, j * width + i)
+      values[j * width + i] = Number.isNaN(v) ? -9999 : v
     }
   }
-  values[3] = -9999
   const meta: Record<string, unknown> = { width, height, BitsPerSample: [32], SampleFormat: [3], GDAL_NODATA: '-9999' }
   Object.assign(meta, {
     ModelPixelScale: [cell, cell, 0],
@@ -69,3 +77,7 @@ export function planeTiff(lonDeg = 9.4, latDeg = 47.2) {
   return { bytes, E0, N0, left, top, cell, width, height }
 }
 
+/** A GeoTIFF of 60 x 50 cells of 25 m (utmTiff) around (lonDeg, latDeg): a tilted plane h = 400 + 0.01 (E - E0) - 0.02 (N - N0), one nodata cell (the fourth of the first row). */
+export function planeTiff(lonDeg = 9.4, latDeg = 47.2) {
+  return utmTiff(lonDeg, latDeg, (e, n, cell) => (cell === 3 ? NaN : 400 + 0.01 * e - 0.02 * n))
+}

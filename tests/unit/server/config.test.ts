@@ -18,7 +18,10 @@ describe('loadConfig', () => {
       fakeSmtpPort: 2525,
       mailFrom: 'Skyfurrow <plans@skyfurrow.test>',
       logLevel: 'info',
+      terrainFileMaxBytes: 64 * 1024 * 1024,
     })
+    expect(loadConfig({ DATABASE_URL: url, TERRAIN_FILE_MAX_MB: '2' }).terrainFileMaxBytes).toBe(2 * 1024 * 1024)
+    expect(() => loadConfig({ DATABASE_URL: url, TERRAIN_FILE_MAX_MB: '0' })).toThrow(/TERRAIN_FILE_MAX_MB/)
   })
 
   it('treats empty variables as unset', () => {

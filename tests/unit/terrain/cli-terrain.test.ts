@@ -1,8 +1,9 @@
 /**
  * `--terrain FILE` of the forecast command line: an ESRI ASCII grid without a .prj is read
  * as WGS-84 degrees; point mode JSON carries terrainHorizon; bad files exit with status 2.
- * The expected angle is the closed form atan((H - h0 - d^2/2R) / d) (terrain.ts header),
- * d the distance to the plateau edge, within one grid cell of the resampled model.
+ * The expected angle is the closed form atan((H - h0 - (1 - k) d^2/2R) / d) (terrain.ts header),
+ * d the distance to the plateau edge, within one grid cell of the resampled model; k is the
+ * engine's default, 0.13, unless --refraction says otherwise.
  */
 import { spawnSync } from 'node:child_process'
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
@@ -10,7 +11,7 @@ import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { afterAll, describe, expect, it } from 'vitest'
-import { EARTH_MEAN_RADIUS_M, localPlane, toPlane } from '../../../shared/precision/index.ts'
+import { EARTH_MEAN_RADIUS_M, localPlane, TERRAIN_REFRACTION_K, toPlane } from '../../../shared/precision/index.ts'
 
 const root = fileURLToPath(new URL('../../../', import.meta.url))
 const dir = mkdtempSync(join(tmpdir(), 'skyfurrow-terrain-'))
@@ -51,7 +52,7 @@ describe('forecast CLI --terrain', () => {
     const firstFullLon = xll + (Math.ceil((EDGE_LON - xll) / CELL - 0.5) + 0.5) * CELL
     const [d] = toPlane(plane, firstFullLon, LAT)
     const cellM = CELL * plane.mPerDegLon
-    const angle = (dM: number) => (Math.atan((400 - 3 - (dM * dM) / (2 * EARTH_MEAN_RADIUS_M)) / dM) * 180) / Math.PI
+    const angle = (dM: number) => (Math.atan((400 - 3 - ((1 - TERRAIN_REFRACTION_K) * dM * dM) / (2 * EARTH_MEAN_RADIUS_M)) / dM) * 180) / Math.PI
     expect(out.terrainHorizon[90].elevationDeg).toBeGreaterThan(angle(d + cellM))
     expect(out.terrainHorizon[90].elevationDeg).toBeLessThan(angle(d - cellM))
     expect(out.terrainHorizon[270].elevationDeg).toBe(0)

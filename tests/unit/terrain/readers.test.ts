@@ -1,8 +1,17 @@
 // Elevation model readers and the CRS transform. References:
-// - UTM: EPSG Guidance Note 7-2 (IOGP 373-7-2), Transverse Mercator: on the central
-//   meridian the easting is the false easting (500 000 m) and the northing is k0 * M(phi),
-//   M the meridian arc of the ellipsoid, by the series of that note (terms to e^6), k0 = 0.9996.
+// - Transverse Mercator: IOGP Publication 373-7-2, Geomatics Guidance Note 7 part 2
+//   (EPSG Guidance Note 7-2), "Transverse Mercator" (EPSG method 9807), its worked example
+//   for OSGB 1936 / British National Grid: latitude 50 deg 30' 00" N, longitude 00 deg 30' 00" E
+//   -> E 577 274.99 m, N 69 740.50 m, and back (figures checked against the note's example
+//   as the EPSG dataset carries it for method 9807). The note's figures are rounded to the
+//   centimetre; proj4 gives 577 274.984 m / 69 740.492 m, as does the Kruger series to n^6
+//   (Karney 2011, below), so the check allows 1 cm.
+// - The product's own UTM definitions (crsOfEpsg: EPSG 326nn, 327nn, 258nn) off the central
+//   meridian: against the geodesy package (C. Veness, utm.js: C. F. F. Karney, "Transverse
+//   Mercator with an accuracy of a few nanometers", J. Geodesy 85 (2011) 475-485, Kruger
+//   series to order n^6), a second implementation independent of proj4.
 // - GeoTIFFs are written in the test by the geotiff package's own writer (writeArrayBuffer).
+import { LatLon } from 'geodesy/utm.js'
 import proj4 from 'proj4'
 import { describe, expect, it } from 'vitest'
 import { localTerrainGrid, modelBounds } from '../../../server/terrain/grid.ts'
@@ -11,29 +20,52 @@ import { gridHeightAt, localPlane, toPlane } from '../../../shared/precision/ind
 import { planeTiff, plainTiff } from '../../support/tiff.ts'
 
 const WGS84 = '+proj=longlat +datum=WGS84 +no_defs'
+const dms = (d: number, m: number, s: number) => d + m / 60 + s / 3600
 
-/** Meridian arc (m) from the equator to latitude phi (rad), EPSG GN 7-2 series. */
-function meridianArcM(phi: number, a = 6378137, f = 1 / 298.257223563): number {
-  const e2 = f * (2 - f)
-  const e4 = e2 * e2
-  const e6 = e4 * e2
-  return a * ((1 - e2 / 4 - (3 * e4) / 64 - (5 * e6) / 256) * phi - ((3 * e2) / 8 + (3 * e4) / 32 + (45 * e6) / 1024) * Math.sin(2 * phi) + ((15 * e4) / 256 + (45 * e6) / 1024) * Math.sin(4 * phi) - ((35 * e6) / 3072) * Math.sin(6 * phi))
-}
+describe('Transverse Mercator (proj4) against EPSG Guidance Note 7-2', () => {
+  // OSGB 1936 / British National Grid (EPSG:27700): Airy 1830, natural origin 49 N 2 W,
+  // k0 = 0.9996012717, false origin E 400 000 m, N -100 000 m (the note's parameters).
+  const airy = '+proj=longlat +ellps=airy +no_defs'
+  const bng = '+proj=tmerc +lat_0=49 +lon_0=-2 +k=0.9996012717 +x_0=400000 +y_0=-100000 +ellps=airy +units=m +no_defs'
 
-describe('CRS transform (proj4) against EPSG Guidance Note 7-2', () => {
-  it('UTM zone 32N on its central meridian (9 deg E): E = 500 000 m, N = 0.9996 M(phi)', () => {
-    const utm = crsOfEpsg(32632)!
-    for (const lat of [0, 30, 47.2, 60]) {
-      const [e, n] = proj4(WGS84, utm.crs, [9, lat])
-      expect(e).toBeCloseTo(500000, 3)
-      expect(Math.abs(n - 0.9996 * meridianArcM((lat * Math.PI) / 180))).toBeLessThan(0.01)
-    }
+  it('forward: 50 30 00 N, 00 30 00 E -> E 577 274.99 m, N 69 740.50 m', () => {
+    const [e, n] = proj4(airy, bng, [dms(0, 30, 0), dms(50, 30, 0)])
+    expect(Math.abs(e - 577274.99)).toBeLessThan(0.01)
+    expect(Math.abs(n - 69740.5)).toBeLessThan(0.01)
   })
 
-  it('UTM south zones add the false northing of 10 000 000 m', () => {
-    const [e, n] = proj4(WGS84, crsOfEpsg(32733)!.crs, [15, -30])
-    expect(e).toBeCloseTo(500000, 3)
-    expect(Math.abs(n - (10_000_000 - 0.9996 * meridianArcM((30 * Math.PI) / 180)))).toBeLessThan(0.01)
+  it('reverse: E 577 274.99 m, N 69 740.50 m -> 50 30 00.000 N, 00 30 00.000 E', () => {
+    const [lon, lat] = proj4(bng, airy, [577274.99, 69740.5])
+    // The note gives the result to 0.001"; 0.001" of arc is 3 cm of latitude.
+    expect(Math.abs(lat - dms(50, 30, 0)) * 3600).toBeLessThan(0.001)
+    expect(Math.abs(lon - dms(0, 30, 0)) * 3600).toBeLessThan(0.001)
+  })
+})
+
+describe("the reader's UTM definitions (crsOfEpsg) against the geodesy package", () => {
+  // Points up to 3 deg off the central meridian (the edge of a zone), north and south.
+  const cases: Array<{ code: number; lonDeg: number; latDeg: number; datum?: 'ETRS89' }> = [
+    { code: 32632, lonDeg: 9, latDeg: 47.2 }, // on the central meridian
+    { code: 32632, lonDeg: 11.95, latDeg: 47.3 }, // 2.95 deg east of it
+    { code: 32632, lonDeg: 6.05, latDeg: 60.2 },
+    { code: 32618, lonDeg: -77.4181, latDeg: 41.262 }, // the demo hollow's zone
+    { code: 32719, lonDeg: -70.5, latDeg: -33.45 },
+    { code: 32733, lonDeg: 17.9, latDeg: -29.9 },
+    { code: 25833, lonDeg: 14.8, latDeg: 51.1, datum: 'ETRS89' }, // ETRS89: GRS 80 ellipsoid
+  ]
+
+  it.each(cases)('EPSG:$code at $latDeg, $lonDeg: forward within 1 mm, and back', ({ code, lonDeg, latDeg, datum }) => {
+    const crs = crsOfEpsg(code)!
+    const geographic = datum ? '+proj=longlat +ellps=GRS80 +no_defs' : WGS84
+    const [e, n] = proj4(geographic, crs.crs, [lonDeg, latDeg])
+    const ref = new LatLon(latDeg, lonDeg, 0, datum ? LatLon.datums.ETRS89 : LatLon.datums.WGS84).toUtm(code % 100)
+    expect(ref.hemisphere).toBe(code >= 32701 && code <= 32760 ? 'S' : 'N')
+    expect(Math.abs(e - ref.easting)).toBeLessThan(0.001)
+    expect(Math.abs(n - ref.northing)).toBeLessThan(0.001)
+    // The inverse (used for the model's bounds) returns the point to 1e-8 deg (about 1 mm).
+    const [lon, lat] = proj4(crs.crs, geographic, [ref.easting, ref.northing])
+    expect(Math.abs(lon - lonDeg)).toBeLessThan(1e-8)
+    expect(Math.abs(lat - latDeg)).toBeLessThan(1e-8)
   })
 
   it('names an unsupported code', () => {
