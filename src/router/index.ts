@@ -5,6 +5,7 @@ import { useSessionStore } from '@/stores/session'
 import './meta'
 import { decideNavigation } from './guard'
 import { RouteNames } from './names'
+import { navigationEnded, navigationStarted } from './pending'
 import { accountRoutes } from './routes/account'
 import { adminRoutes } from './routes/admin'
 import { authRoutes } from './routes/auth'
@@ -26,6 +27,7 @@ export const router = createRouter({
 })
 
 router.beforeEach(async (to) => {
+  navigationStarted(to)
   const session = useSessionStore()
   const meta = useMetaStore()
   await Promise.all([session.ensureChecked(), meta.ensureLoaded()])
@@ -33,5 +35,8 @@ router.beforeEach(async (to) => {
 })
 
 router.afterEach((to) => {
+  navigationEnded(to)
   document.title = to.meta.title ? `${to.meta.title} · ${config.appName}` : config.appName
 })
+
+router.onError(() => navigationEnded(null))
