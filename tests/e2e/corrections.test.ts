@@ -7,7 +7,7 @@
 import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
-import type { CorrectionSources, FieldCorrection } from '@shared/schemas/corrections'
+import type { CorrectionSources, FieldCorrection, SpaceWeatherStatus } from '@shared/schemas/corrections'
 import type { Field } from '@shared/schemas/fields'
 import type { ServiceLevel, WorkType } from '@shared/schemas/planning'
 import { apiFromPage, artifactsDir, demo, postFromPage, screenshot, signIn, startBrowser, startServer, waitForForecast, type RunningBrowser, type RunningServer } from './support'
@@ -133,7 +133,17 @@ describe('a field out of its base station\'s radio range', () => {
     await budget.waitFor()
     expect(await budget.getByTestId('budget-baseline').textContent()).toContain(`${after.link!.baselineKm.toFixed(1)} km to ${base.name}`)
     await budget.getByText('Planting is Closed: the field is outside the radio range').waitFor()
-    expect(await budget.getByTestId('budget-space-weather').textContent()).toMatch(/Space weather: (Kp|geomagnetic storm|no Kp forecast)/)
+    // The space-weather line follows the feed's state: a stale or missing feed says storms are unknown.
+    const feedState = ((await apiFromPage(page, '/api/space-weather')).body as SpaceWeatherStatus).state
+    const weatherLine = budget.getByTestId('budget-space-weather')
+    expect(await weatherLine.getAttribute('data-state')).toMatch(feedState === 'current' ? /^(quiet|storm|uncovered)$/ : new RegExp(`^${feedState}$`))
+    expect(await weatherLine.textContent()).toMatch(
+      feedState === 'stale'
+        ? /Space weather: space-weather forecast out of date .*storms unknown/
+        : feedState === 'none'
+          ? /Space weather: no space-weather forecast has been read, storms unknown/
+          : /Space weather: (Kp|geomagnetic storm|no Kp forecast)/,
+    )
     await page.getByTestId('sky-check').screenshot({ path: join(artifactsDir, 'corrections-sky-check-budget.png') })
 
     // The stored week after the recompute: every Planting hour Closed, out of range.
