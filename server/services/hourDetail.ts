@@ -127,7 +127,9 @@ export function createHourDetailService(ctx: ServiceContext) {
           hdop,
           vdop,
           sigmaUereM: field.sigmaUereM,
-          link: link ? { kind: link.kind, name: link.name, baselineKm: link.baselineKm, farthestKm: link.farthestKm, reachable: link.reachable } : null,
+          link: link
+            ? { kind: link.kind, name: link.name, baselineKm: link.baselineKm, farthestKm: link.farthestKm, reachable: link.reachable, baselineKnown: link.baselineKnown }
+            : null,
           spaceWeather: hourSpaceWeather(correction.kpBlocks, hourStart),
           spaceWeatherFeed: { state: feed.state, lastOkAt: feed.lastOkAt?.toISOString() ?? null },
           closedReasons: Object.fromEntries(

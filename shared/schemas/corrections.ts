@@ -83,6 +83,8 @@ export interface FieldCorrection {
     baselineKm: number
     farthestKm: number
     reachable: boolean
+    /** false for a network known only by its coverage (no mount points): baselineKm is 0 for want of a figure */
+    baselineKnown: boolean
   } | null
   /** the field's own service level: its error model and the baseline part */
   serviceLevel: {
@@ -140,7 +142,7 @@ export interface HourErrorBudget {
   baselineV95M: number
   h95M: number | null
   v95M: number | null
-  link: { kind: 'base' | 'network'; name: string; baselineKm: number; farthestKm: number; reachable: boolean } | null
+  link: { kind: 'base' | 'network'; name: string; baselineKm: number; farthestKm: number; reachable: boolean; baselineKnown: boolean } | null
   /** highest Kp of the hour and its G level; null: no Kp forecast covers the hour */
   spaceWeather: { kpMax: number; g: number } | null
   /**

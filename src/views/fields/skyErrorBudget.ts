@@ -32,7 +32,10 @@ export function skyErrorBudget(
     hdop: dop?.hdop ?? null,
     vdop: dop?.vdop ?? null,
     ...parts,
-    link: level.needsBase && link ? { kind: link.kind, name: link.name, baselineKm: link.baselineKm, farthestKm: link.farthestKm, reachable: link.reachable } : null,
+    link:
+      level.needsBase && link
+        ? { kind: link.kind, name: link.name, baselineKm: link.baselineKm, farthestKm: link.farthestKm, reachable: link.reachable, baselineKnown: link.baselineKnown }
+        : null,
     spaceWeather: spaceWeather ? hourSpaceWeather(blocks, hourStartMs) : null,
     spaceWeatherFeed: { state: spaceWeather?.state ?? 'none', lastOkAt: spaceWeather?.lastOkAt ?? null },
     closedReasons,

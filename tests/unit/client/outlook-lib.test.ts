@@ -227,7 +227,7 @@ describe('chart limits', () => {
     // The demo RTK level: sigma 0.012 m, 1 mm per km both ways ("a few mm + 1 ppm", receiver
     // data sheets; common practice, no single source), a 30 km single-base limit.
     const rtkBase: ServiceLevel = { ...rtk, ppmH: 1, ppmV: 1, maxBaselineKm: 30, needsBase: true }
-    const link = (baselineKm: number, reachable = true) => ({ kind: 'base' as const, id: 1, name: 'Yard base', baselineKm, farthestKm: baselineKm + 0.3, reachable })
+    const link = (baselineKm: number, reachable = true) => ({ kind: 'base' as const, id: 1, name: 'Yard base', baselineKm, farthestKm: baselineKm + 0.3, reachable, baselineKnown: true })
 
     it('shrinks the DOP limits by ppm b as the error model says: (limit / k - ppm b) / sigma', () => {
       // b = 12 km: ppm b = 12 mm. H: (0.05 / 2 - 0.012) / 0.012 = 1.08333; V: (0.04 / 1.96 - 0.012) / 0.012 = 0.70068.

@@ -169,7 +169,7 @@ describe('satellites from the orbit data', () => {
 
 describe('the sky check’s error budget', () => {
   const rtk: ServiceLevel = { id: 3, name: 'RTK', sigmaUereM: 0.012, note: '', ppmH: 1, ppmV: 1, maxBaselineKm: 30, needsBase: true }
-  const link = { kind: 'base' as const, id: 1, name: 'Yard base', baselineKm: 12, farthestKm: 12.4, reachable: true }
+  const link = { kind: 'base' as const, id: 1, name: 'Yard base', baselineKm: 12, farthestKm: 12.4, reachable: true, baselineKnown: true }
   const at = Date.UTC(2026, 11, 3, 10, 20)
   const block = (startH: number, kp: number) => ({
     start: new Date(Date.UTC(2026, 11, 3, startH)).toISOString(),
