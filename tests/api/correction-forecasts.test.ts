@@ -14,6 +14,7 @@ import { createStore } from '../../server/db/repositories/index.ts'
 import { clearListeners } from '../../server/events.ts'
 import { startJobs, type JobsHandle } from '../../server/jobs/index.ts'
 import { createLogger } from '../../server/logger.ts'
+import { planSpaceWeather } from '../../server/services/planSpaceWeather.ts'
 import { mondayOf } from '../../server/services/plansCompose.ts'
 import { ageKpFeed, keepKpFeed, readLocalFakeFeed } from '../support/kpFeed.ts'
 import { demo, signIn, startTestServer, type Client, type TestServer } from '../support/server.ts'
@@ -144,6 +145,21 @@ describe('the fake feed’s storm day in the stored week', () => {
     expect(plan.text).toContain(`STORM ${line}`)
     expect(plan.html).toContain(line)
     expect(plan.text).not.toMatch(/forecast is stale/)
+  })
+
+  it('an hour keeps the worst flag when the farm’s fields were computed at different times', async () => {
+    // Beet Ground's stored storm hours, and the same hours as a field computed before the
+    // storm was forecast would hold them (no storm: Kp 2 in every hour).
+    const beet = forecast.fields.find((f) => f.fieldName === 'Beet Ground')!
+    const rows = (await server.repos.forecasts.hours([beet.fieldId], new Date(forecast.from), new Date(forecast.to))).filter((r) => stormHours().has(r.hourStart.getTime()))
+    expect(rows).toHaveLength(6)
+    const quiet = rows.map((r) => ({ ...r, fieldId: -1, extraJson: JSON.stringify({ spaceWeather: { kpMax: 2, g: 0 } }) }))
+    for (const order of [[...quiet, ...rows], [...rows, ...quiet]]) {
+      const sw = await planSpaceWeather(server.repos, order, farm.timeZone, Date.now(), Date.parse(forecast.to))
+      expect(sw.storms).toHaveLength(1)
+      const kpMax = Math.max(...feed.filter((b) => noaaG(b.kp) >= 3).map((b) => b.kp))
+      expect(sw.storms[0].endsWith(`: geomagnetic storm up to G${noaaG(kpMax)} (Kp ${kpMax})`)).toBe(true)
+    }
   })
 
   it('a stale feed is named as stale in the plan, with the time of its last read', async () => {

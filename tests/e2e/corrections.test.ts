@@ -1,6 +1,6 @@
 // Correction quality in a browser: a field moved out of its RTK base's radio range shows the
 // warning on the Fields page and the Outlook, and once recomputed its Planting hours are
-// Closed for that reason; the admin forms carry the error model with a baseline (Service
+// Closed for that reason, with the storm hours of the Kp forecast marked in the grid; the admin forms carry the error model with a baseline (Service
 // levels) and what a geomagnetic storm does to a work type (Work types).
 //
 // The test makes its own field, service level and work type and removes them again.
@@ -165,6 +165,14 @@ describe('a field out of its base station\'s radio range', () => {
     const states = await cells.evaluateAll((els) => els.map((e) => e.getAttribute('data-state')))
     expect(states.length).toBeGreaterThanOrEqual(24 * 6)
     expect(new Set(states)).toEqual(new Set(['closed']))
+    // Storm marks: exactly the cells of the hours whose stored flag is G3 or worse carry one, with
+    // their G level; with the feed current, the demo feed's storm day puts some in the week.
+    const stormByHour = new Map(hours.filter((h) => (h.spaceWeather?.g ?? 0) >= 3).map((h) => [Date.parse(h.time), String(h.spaceWeather!.g)]))
+    const marked = await page
+      .locator('[data-testid="hour-grid"] button.cell[data-storm]')
+      .evaluateAll((els) => els.map((e) => [e.getAttribute('data-hour') ?? '', e.getAttribute('data-storm') ?? ''] as const))
+    expect(new Map(marked.map(([iso, g]) => [Date.parse(iso), g]))).toEqual(stormByHour)
+    if (feedState === 'current') expect(stormByHour.size).toBeGreaterThan(0)
     await screenshot(page, 'corrections-outlook-out-of-range')
   }, 420_000)
 })
