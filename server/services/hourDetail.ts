@@ -16,6 +16,7 @@ import { engineWorkTypes, obstructionCollection, outagesInWindow } from '../fore
 import { TERRAIN_SETTINGS } from '../../shared/schemas/terrain.ts'
 import { boundaryGeometry, terrainGridFor } from '../terrain/store.ts'
 import type { ServiceContext } from './context.ts'
+import { kpFeedState } from './spaceWeather.ts'
 import { toForecastHour } from '../forecast/storedHour.ts'
 
 /** How far from now an hour's detail may be asked for (the engine can compute any hour, but pages show the week). */
@@ -56,9 +57,10 @@ export function createHourDetailService(ctx: ServiceContext) {
         throw badRequest('Ask for an hour within 60 days of today.', { hour: 'Choose an hour within 60 days of today.' })
       }
       const farm = await repos.farms.findById(field.farmId)
-      const [{ obstructions: obstructionRows, workTypes: workTypeRows, orbits, terrain: terrainRow, correction }, storedRows] = await Promise.all([
+      const [{ obstructions: obstructionRows, workTypes: workTypeRows, orbits, terrain: terrainRow, correction }, storedRows, feedRecord] = await Promise.all([
         inputsOfField(store, field, { startMs: hourStart, endMs: hourStart + HOUR_MS }),
         repos.forecasts.hours([field.id], new Date(hourStart), new Date(hourStart + HOUR_MS)),
+        repos.corrections.feedStatus(),
       ])
       const names = new Map(workTypeRows.map((w) => [w.id, w.name]))
       const settings = engineSettings(config)
@@ -109,11 +111,14 @@ export function createHourDetailService(ctx: ServiceContext) {
       // The sky at the middle of the hour, with the satellites' tracks over the hour around it.
       const sky = skyView({ ...common, point: { latDeg: points[worst].latDeg, lonDeg: points[worst].lonDeg }, atMs: hourStart + HOUR_MS / 2 })
       const stored = storedRows[0] ? storedFigures(storedRows[0], names) : null
-      // The error budget at the field's worst: geometry (DOP x sigma), the baseline part, the storm flag.
+      // The error budget at the field's worst: geometry (DOP x sigma), the baseline part, the storm flag
+      // with the state of the feed it comes from.
       const hdop = stored ? stored.hdopMax : points[worst].hdopMax
       const vdop = stored ? stored.vdopMax : points[worst].vdopMax
       const budget = errorBudget({ hdop, vdop }, field.sigmaUereM, correction)
       const link = correction.link
+      // The Kp feed the flag comes from: a stale or missing feed leaves storms unknown.
+      const feed = kpFeedState(feedRecord, nowMs, correction.kpBlocks.length > 0)
       return {
         fieldId: field.id,
         fieldName: field.name,
@@ -122,8 +127,11 @@ export function createHourDetailService(ctx: ServiceContext) {
           hdop,
           vdop,
           sigmaUereM: field.sigmaUereM,
-          link: link ? { kind: link.kind, name: link.name, baselineKm: link.baselineKm, farthestKm: link.farthestKm, reachable: link.reachable } : null,
+          link: link
+            ? { kind: link.kind, name: link.name, baselineKm: link.baselineKm, farthestKm: link.farthestKm, reachable: link.reachable, baselineKnown: link.baselineKnown }
+            : null,
           spaceWeather: hourSpaceWeather(correction.kpBlocks, hourStart),
+          spaceWeatherFeed: { state: feed.state, lastOkAt: feed.lastOkAt?.toISOString() ?? null },
           closedReasons: Object.fromEntries(
             [...correction.workTypes.entries()].filter(([, e]) => e.closedReason).map(([id, e]) => [id, e.closedReason!]),
           ),

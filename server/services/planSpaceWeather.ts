@@ -4,7 +4,7 @@
 import { DateTime } from 'luxon'
 import type { Repositories } from '../db/repositories/index.ts'
 import type { ForecastHourRow } from '../db/schema-planning.ts'
-import { KP_STALE_MS } from './spaceWeather.ts'
+import { kpFeedState } from './spaceWeather.ts'
 
 const HOUR_MS = 3_600_000
 
@@ -20,7 +20,11 @@ export async function planSpaceWeather(repos: Repositories, hours: readonly Fore
   for (const r of hours) {
     try {
       const sw = r.extraJson ? (JSON.parse(r.extraJson) as { spaceWeather?: { kpMax: number; g: number } | null }).spaceWeather : undefined
-      if (sw !== undefined) byHour.set(r.hourStart.getTime(), sw && { g: sw.g, kp: sw.kpMax })
+      if (sw === undefined) continue
+      // Fields computed at different times may disagree: the hour keeps the worst flag.
+      const t = r.hourStart.getTime()
+      const seen = byHour.get(t)
+      if (!seen || (sw && (sw.g > seen.g || (sw.g === seen.g && sw.kpMax > seen.kp)))) byHour.set(t, sw && { g: sw.g, kp: sw.kpMax })
     } catch {
       // An unreadable extra column carries no flag.
     }
@@ -46,12 +50,12 @@ export async function planSpaceWeather(repos: Repositories, hours: readonly Fore
     }
   }
   flush()
-  const feed = await repos.corrections.feedStatus()
-  const lastOk = feed?.lastOkAt?.getTime() ?? null
+  const feed = kpFeedState(await repos.corrections.feedStatus(), nowMs, [...byHour.values()].some((v) => v !== null))
   let note: string | null = null
-  if (lastOk === null) note = 'There is no space-weather (Kp) forecast yet, so storm days cannot be flagged; this is not a quiet forecast.'
-  else if (nowMs - lastOk > KP_STALE_MS || (feed?.lastAttemptAt && feed.lastError && feed.lastAttemptAt.getTime() > lastOk)) {
-    note = `The space-weather (Kp) forecast is stale (last read ${DateTime.fromMillis(lastOk, { zone }).setLocale('en-US').toFormat('ccc d LLL HH:mm')}); storm days may be missing.`
+  if (feed.state === 'none') note = 'There is no space-weather (Kp) forecast yet, so storm days cannot be flagged; this is not a quiet forecast.'
+  else if (feed.state === 'stale') {
+    const read = feed.lastOkAt ? `last read ${DateTime.fromJSDate(feed.lastOkAt, { zone }).setLocale('en-US').toFormat('ccc d LLL HH:mm')}` : 'never read in full'
+    note = `The space-weather (Kp) forecast is stale (${read}); storm days may be missing.`
   } else {
     const covered = [...byHour.entries()].filter(([, v]) => v !== null).map(([t]) => t)
     const last = covered.length ? Math.max(...covered) + HOUR_MS : null

@@ -12,7 +12,7 @@
 // forecast JSON product (from memory; either layout is read). A feed with any unreadable
 // row is refused whole: nothing is stored from it.
 import { gScaleOfKp, STORM_G } from '../../shared/precision/index.ts'
-import type { KpBlockView, SpaceWeatherStatus } from '../../shared/schemas/corrections.ts'
+import type { KpBlockView, SpaceWeatherState, SpaceWeatherStatus } from '../../shared/schemas/corrections.ts'
 import type { Config } from '../config.ts'
 import type { Store } from '../db/repositories/index.ts'
 import { emit } from '../events.ts'
@@ -183,12 +183,35 @@ export function stormDaysOf(blocks: ReadonlyArray<{ start: number; kp: number }>
   return [...new Set(blocks.filter((b) => gScaleOfKp(b.kp) >= STORM_G).map((b) => new Date(b.start).toISOString().slice(0, 10)))]
 }
 
+/** The stored record of the feed's fetches (null: never fetched). */
+export interface KpFeedRecord {
+  lastOkAt: Date | null
+  lastAttemptAt: Date | null
+  lastError: string | null
+}
+
+/**
+ * The feed's state at `nowMs`: 'none' when it was never read (and no blocks are stored);
+ * 'stale' when the last good read is more than 36 hours old, a fetch failed after it, or
+ * blocks are stored without a good read; 'current' otherwise. `failedSince` says the last
+ * fetch failed after the last good read.
+ *
+ * @example
+ * kpFeedState({ lastOkAt: new Date(0), lastAttemptAt: new Date(0), lastError: null }, 40 * 3_600_000, true)
+ * // -> { state: 'stale', lastOkAt: new Date(0), failedSince: false }
+ */
+export function kpFeedState(feed: KpFeedRecord | null, nowMs: number, hasBlocks: boolean): { state: SpaceWeatherState; lastOkAt: Date | null; failedSince: boolean } {
+  const lastOkAt = feed?.lastOkAt ?? null
+  const lastOk = lastOkAt?.getTime() ?? null
+  const failedSince = Boolean(feed?.lastError && feed.lastAttemptAt && (lastOk === null || feed.lastAttemptAt.getTime() > lastOk))
+  const state: SpaceWeatherState = lastOk === null ? (hasBlocks ? 'stale' : 'none') : nowMs - lastOk > KP_STALE_MS || failedSince ? 'stale' : 'current'
+  return { state, lastOkAt, failedSince }
+}
+
 /** The feed's state and its blocks from `fromMs` on. */
 export async function spaceWeatherStatus(store: Store, config: Pick<Config, 'kpFeedUrl' | 'publicUrl'>, nowMs: number, fromMs: number): Promise<SpaceWeatherStatus> {
   const [feed, rows] = await Promise.all([store.repos.corrections.feedStatus(), store.repos.corrections.kpBlocksBetween(fromMs, Infinity)])
-  const lastOk = feed?.lastOkAt?.getTime() ?? null
-  const failedSince = feed?.lastError && feed.lastAttemptAt && (lastOk === null || feed.lastAttemptAt.getTime() > lastOk)
-  const state: SpaceWeatherStatus['state'] = lastOk === null ? (rows.length ? 'stale' : 'none') : nowMs - lastOk > KP_STALE_MS || failedSince ? 'stale' : 'current'
+  const { state, failedSince } = kpFeedState(feed, nowMs, rows.length > 0)
   const blocks: KpBlockView[] = rows.map((b) => ({ start: b.blockStart.toISOString(), end: b.blockEnd.toISOString(), kp: b.kp, g: gScaleOfKp(b.kp), observed: b.observed }))
   return {
     state,

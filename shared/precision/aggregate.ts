@@ -20,6 +20,7 @@
  * error ellipse). The Clear / Tight / Closed rule and the area-and-time weighting are
  * the product's own (DESIGN.md), not a published method.
  */
+import { allowedDop, H95_FACTOR, V95_FACTOR } from './errorModel'
 import type { HourAggregate, HourState, PointHourDetail, WorkType } from './types'
 import type { SampleResults } from './kernel'
 import type { SamplePoint } from './sampling'
@@ -110,8 +111,8 @@ export function workTests(workTypes: readonly WorkType[] | undefined, sigmaUereM
       maxPdop: w.maxPdop,
       // Compare DOPs directly: 2 sigma HDOP <= maxH95  <=>  HDOP <= maxH95 / (2 sigma); with
       // the baseline part (errorModel.ts): 2 (sigma HDOP + bH) <= maxH95  <=>  HDOP <= (maxH95 / 2 - bH) / sigma.
-      maxH: bH === 0 ? w.maxH95M / (2 * sigma) : (w.maxH95M / 2 - bH) / sigma,
-      maxV: w.maxV95M === null || w.maxV95M === undefined ? Infinity : bV === 0 ? w.maxV95M / (1.96 * sigma) : (w.maxV95M / 1.96 - bV) / sigma,
+      maxH: allowedDop(w.maxH95M, H95_FACTOR, sigma, bH),
+      maxV: w.maxV95M === null || w.maxV95M === undefined ? Infinity : allowedDop(w.maxV95M, V95_FACTOR, sigma, bV),
       required: w.requiredShare,
       requireN1: w.requireN1,
     }

@@ -11,7 +11,14 @@
  * from its farthest boundary vertex (the figure of the range and baseline limits, so no
  * part of the field lies beyond them). A network's baseline is the distance to its
  * nearest mount point; a network with only a coverage polygon and no mount points has no
- * baseline figure (0 km) and reaches the fields whose every vertex lies inside it.
+ * known baseline (counted as 0 km, so its service level's sigma must carry the network's
+ * error, and marked as not known) and reaches the fields whose every vertex lies inside it.
+ *
+ * The automatic choice (chooseLink) is what a contractor would pick by hand: a source whose
+ * baseline is known (an own base, a network's mount point) that reaches the field, the
+ * nearest by real distance; a coverage-only network only when no such source reaches, since
+ * its unknown baseline would otherwise win every comparison at 0 km (the product's rule,
+ * common practice, no published source).
  */
 import * as geographiclib from 'geographiclib-geodesic'
 import { fieldPolygons, type FieldGeometry } from './sampling'
@@ -68,6 +75,8 @@ export interface CorrectionLink {
   farthestKm: number
   /** the field lies inside the radio range / the network's coverage */
   reachable: boolean
+  /** false for a network known only by its coverage: baselineKm is then 0 for want of a figure */
+  baselineKnown: boolean
 }
 
 /** Outer-ring vertices of a field (lon, lat pairs; the closing vertex once). */
@@ -99,13 +108,13 @@ export function insideRing(p: LatLon, ring: ReadonlyArray<readonly [number, numb
  *
  * @example
  * linkTo(centroid, vertices, { kind: 'base', id: 1, name: 'Yard', latDeg: 41.6, lonDeg: -93.6, radioRangeKm: 15 })
- * // -> { kind: 'base', id: 1, name: 'Yard', baselineKm: 3.2, farthestKm: 3.6, reachable: true }
+ * // -> { kind: 'base', id: 1, name: 'Yard', baselineKm: 3.2, farthestKm: 3.6, reachable: true, baselineKnown: true }
  */
 export function linkTo(centroid: LatLon, vertices: readonly LatLon[], source: CorrectionSource): CorrectionLink {
   if (source.kind === 'base') {
     const baselineKm = geodesicDistanceKm(centroid, source)
     const farthestKm = Math.max(baselineKm, ...vertices.map((v) => geodesicDistanceKm(v, source)))
-    return { kind: 'base', id: source.id, name: source.name, baselineKm, farthestKm, reachable: farthestKm <= source.radioRangeKm }
+    return { kind: 'base', id: source.id, name: source.name, baselineKm, farthestKm, reachable: farthestKm <= source.radioRangeKm, baselineKnown: true }
   }
   const points = [centroid, ...vertices]
   const reachable = source.coverage ? points.every((p) => insideRing(p, source.coverage!)) : source.mountPoints.length > 0
@@ -117,13 +126,19 @@ export function linkTo(centroid: LatLon, vertices: readonly LatLon[], source: Co
     baselineKm = nearest(centroid)
     farthestKm = Math.max(baselineKm, ...vertices.map(nearest))
   }
-  return { kind: 'network', id: source.id, name: source.name, baselineKm, farthestKm, reachable }
+  return { kind: 'network', id: source.id, name: source.name, baselineKm, farthestKm, reachable, baselineKnown: source.mountPoints.length > 0 }
 }
 
 /**
- * The link a field uses: the chosen source when one is given, else the nearest reachable
- * one (smallest centroid baseline), else the nearest one of all (unreachable, so the
- * caller warns); null when there are no sources at all.
+ * The link a field uses: the chosen source when one is given; else, in this order, the
+ * nearest reachable source with a known baseline (smallest centroid baseline), a reachable
+ * coverage-only network (lowest id), the nearest unreachable source with a known baseline,
+ * an unreachable coverage-only network (both unreachable, so the caller warns); null when
+ * there are no sources at all.
+ *
+ * @example
+ * // A yard base 8 km off in range and a network known only by a coverage holding the field:
+ * chooseLink(centroid, vertices, [yardBase, coverageOnly])!.name // -> 'Yard' (the network's 0 km is not a distance)
  */
 export function chooseLink(
   centroid: LatLon,
@@ -135,6 +150,8 @@ export function chooseLink(
     const s = sources.find((x) => x.kind === chosen.kind && x.id === chosen.id)
     if (s) return linkTo(centroid, vertices, s)
   }
-  const links = sources.map((s) => linkTo(centroid, vertices, s)).sort((a, b) => a.baselineKm - b.baselineKm)
-  return links.find((l) => l.reachable) ?? links[0] ?? null
+  const links = sources.map((s) => linkTo(centroid, vertices, s))
+  const rank = (l: CorrectionLink) => (l.reachable ? 0 : 2) + (l.baselineKnown ? 0 : 1)
+  links.sort((a, b) => rank(a) - rank(b) || (a.baselineKnown ? a.baselineKm - b.baselineKm : a.id - b.id))
+  return links[0] ?? null
 }

@@ -31,6 +31,20 @@ export interface ErrorModel {
 export const H95_FACTOR = 2
 export const V95_FACTOR = 1.96
 
+/**
+ * The largest DOP that keeps `factor (sigma DOP + baselinePart)` within `max95M`, the error
+ * model solved for the DOP: (max95M / factor - baselinePart) / sigma. With no baseline part
+ * it is max95M / (factor sigma), computed as such (the engine's figures stay as they were).
+ * Zero or less: no geometry meets the limit at this baseline.
+ *
+ * @example
+ * allowedDop(0.05, H95_FACTOR, 0.012, 0)     // -> 2.0833 (0.05 / 0.024)
+ * allowedDop(0.05, H95_FACTOR, 0.012, 0.003) // -> 1.8333 ((0.025 - 0.003) / 0.012)
+ */
+export function allowedDop(max95M: number, factor: number, sigmaUereM: number, baselinePartM: number): number {
+  return baselinePartM === 0 ? max95M / (factor * sigmaUereM) : (max95M / factor - baselinePartM) / sigmaUereM
+}
+
 /** Why a work type is closed regardless of geometry. */
 export type LinkReason = 'no-source' | 'out-of-range' | 'baseline-limit'
 

@@ -83,6 +83,8 @@ export interface FieldCorrection {
     baselineKm: number
     farthestKm: number
     reachable: boolean
+    /** false for a network known only by its coverage (no mount points): baselineKm is 0 for want of a figure */
+    baselineKnown: boolean
   } | null
   /** the field's own service level: its error model and the baseline part */
   serviceLevel: {
@@ -111,10 +113,12 @@ export interface KpBlockView {
   observed: boolean
 }
 
+/** 'current': fetched within 36 h; 'stale': older, or the last fetch failed; 'none': never fetched */
+export type SpaceWeatherState = 'current' | 'stale' | 'none'
+
 /** GET /api/space-weather. */
 export interface SpaceWeatherStatus {
-  /** 'current': fetched within 36 h; 'stale': older, or the last fetch failed; 'none': never fetched */
-  state: 'current' | 'stale' | 'none'
+  state: SpaceWeatherState
   url: string
   usesLocalFake: boolean
   lastOkAt: string | null
@@ -138,9 +142,14 @@ export interface HourErrorBudget {
   baselineV95M: number
   h95M: number | null
   v95M: number | null
-  link: { kind: 'base' | 'network'; name: string; baselineKm: number; farthestKm: number; reachable: boolean } | null
+  link: { kind: 'base' | 'network'; name: string; baselineKm: number; farthestKm: number; reachable: boolean; baselineKnown: boolean } | null
   /** highest Kp of the hour and its G level; null: no Kp forecast covers the hour */
   spaceWeather: { kpMax: number; g: number } | null
+  /**
+   * the Kp feed the flag comes from: when 'stale' or 'none', storms are unknown and the
+   * flag (from an old forecast, or none) must not be read as quiet
+   */
+  spaceWeatherFeed: { state: SpaceWeatherState; lastOkAt: string | null }
   /** work type id -> why it is Closed regardless of the geometry */
   closedReasons: Record<string, CorrectionProblem>
 }

@@ -3,14 +3,21 @@
  * type's limits translated to the chart's quantity. Pure, so the translation of limits
  * is unit-tested.
  *
- * Limits: the engine's expected errors are horizontal 95 % = 2 * sigma_UERE * HDOP
- * (2DRMS) and vertical 95 % = 1.96 * sigma_UERE * VDOP (shared/precision/dop.ts), so a
- * work type's maximum error gives an HDOP or VDOP limit for its service level's sigma.
+ * Limits: the engine's expected errors are horizontal 95 % = 2 (sigma_UERE HDOP + ppm_H b)
+ * (2DRMS) and vertical 95 % = 1.96 (sigma_UERE VDOP + ppm_V b), b the field's baseline to
+ * its RTK base or mount point (shared/precision/errorModel.ts), so a work type's maximum
+ * error gives an HDOP or VDOP limit for its service level and the field's link:
+ * (limit / factor - ppm b) / sigma, the engine's own test (allowedDop).
  */
+import { allowedDop, H95_FACTOR, linkEffect, V95_FACTOR, type LinkReason } from '@shared/precision'
 import type { UnitSystem } from '@shared/schemas'
+import type { FieldCorrection } from '@shared/schemas/corrections'
 import type { ServiceLevel, WorkType } from '@shared/schemas/planning'
 import type { ForecastHour } from '@shared/schemas/forecast'
 import { errorUnit, type ErrorUnit } from './units'
+
+/** A field's RTK link as the field's correction route gives it; undefined: not known (a view of several fields). */
+export type ChartLink = FieldCorrection['link'] | undefined
 
 export const chartKinds = ['dop', 'sats', 'margin', 'errors'] as const
 export type ChartKind = (typeof chartKinds)[number]
@@ -40,14 +47,35 @@ export interface ChartData {
   fromZero: boolean
 }
 
-/** HDOP and VDOP limits of a work type for its service level (null when unknown). */
-export function dopLimits(workType: WorkType | null, serviceLevels: readonly ServiceLevel[]): { hdop: number | null; vdop: number | null } {
-  if (!workType) return { hdop: null, vdop: null }
-  const sigma = serviceLevels.find((s) => s.id === workType.serviceLevelId)?.sigmaUereM
-  if (!sigma || !(sigma > 0)) return { hdop: null, vdop: null }
+export interface DopLimits {
+  /** the largest HDOP / VDOP that meets the work type on this field (0: none at this baseline); null: not known or no limit */
+  hdop: number | null
+  vdop: number | null
+  /** set when the field's link closes the work type whatever the geometry (no DOP limit then) */
+  closedReason: LinkReason | null
+}
+
+/**
+ * HDOP and VDOP limits of a work type for its service level and the field's link, as the
+ * engine tests its hours. A level that needs a base with the link not known has no limit
+ * (the baseline part would move it); a link that closes the work type has none either.
+ *
+ * @example
+ * dopLimits(planting, [rtk], { baselineKm: 3, farthestKm: 3.2, reachable: true, ... }) // -> { hdop: 1.83, vdop: null, closedReason: null } (1 ppm)
+ */
+export function dopLimits(workType: WorkType | null, serviceLevels: readonly ServiceLevel[], link?: ChartLink): DopLimits {
+  const none = { hdop: null, vdop: null, closedReason: null }
+  if (!workType) return none
+  const level = serviceLevels.find((s) => s.id === workType.serviceLevelId)
+  const sigma = level?.sigmaUereM
+  if (!level || !sigma || !(sigma > 0)) return none
+  if (level.needsBase && link === undefined && (level.ppmH > 0 || level.ppmV > 0)) return none
+  const effect = linkEffect(level, link ?? null)
+  if (level.needsBase && link !== undefined && effect.closedReason) return { ...none, closedReason: effect.closedReason }
   return {
-    hdop: workType.maxH95M / (2 * sigma),
-    vdop: workType.maxV95M === null ? null : workType.maxV95M / (1.96 * sigma),
+    hdop: Math.max(0, allowedDop(workType.maxH95M, H95_FACTOR, sigma, effect.baselineHM)),
+    vdop: workType.maxV95M === null ? null : Math.max(0, allowedDop(workType.maxV95M, V95_FACTOR, sigma, effect.baselineVM)),
+    closedReason: null,
   }
 }
 
@@ -70,8 +98,10 @@ export function chartData(
   workType: WorkType | null,
   serviceLevels: readonly ServiceLevel[],
   units: UnitSystem,
+  /** the field's RTK link, for the baseline part of the DOP limits */
+  link?: ChartLink,
 ): ChartData {
-  const limits = dopLimits(workType, serviceLevels)
+  const limits = dopLimits(workType, serviceLevels, link)
   const limit = (name: string, value: number | null | undefined) => (value === null || value === undefined ? [] : [{ name, value: round(value, 2) }])
   switch (kind) {
     case 'dop':

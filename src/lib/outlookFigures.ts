@@ -6,7 +6,7 @@
  */
 import type { UnitSystem } from '@shared/schemas'
 import type { ServiceLevel, WorkType } from '@shared/schemas/planning'
-import { dopLimits } from './chartSeries'
+import { dopLimits, type ChartLink } from './chartSeries'
 import type { ForecastHour } from '@shared/schemas/forecast'
 import { errorUnit, formatDop, formatErrorM, formatShare, type ErrorUnit } from './units'
 
@@ -176,9 +176,11 @@ export function figureLimit(
   workType: WorkType | null,
   serviceLevels: readonly ServiceLevel[],
   units: UnitSystem,
+  /** the field's RTK link, for the baseline part of the DOP limits; undefined: not known */
+  link?: ChartLink,
 ): FigureLimit | null {
   if (!workType) return null
-  const dop = dopLimits(workType, serviceLevels)
+  const dop = dopLimits(workType, serviceLevels, link)
   let limit: number | null = null
   let need = ''
   switch (figure.key) {

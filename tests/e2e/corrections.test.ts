@@ -1,13 +1,13 @@
 // Correction quality in a browser: a field moved out of its RTK base's radio range shows the
 // warning on the Fields page and the Outlook, and once recomputed its Planting hours are
-// Closed for that reason; the admin forms carry the error model with a baseline (Service
+// Closed for that reason, with the storm hours of the Kp forecast marked in the grid; the admin forms carry the error model with a baseline (Service
 // levels) and what a geomagnetic storm does to a work type (Work types).
 //
 // The test makes its own field, service level and work type and removes them again.
 import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
-import type { CorrectionSources, FieldCorrection } from '@shared/schemas/corrections'
+import type { CorrectionSources, FieldCorrection, SpaceWeatherStatus } from '@shared/schemas/corrections'
 import type { Field } from '@shared/schemas/fields'
 import type { ServiceLevel, WorkType } from '@shared/schemas/planning'
 import { apiFromPage, artifactsDir, demo, postFromPage, screenshot, signIn, startBrowser, startServer, waitForForecast, type RunningBrowser, type RunningServer } from './support'
@@ -133,7 +133,17 @@ describe('a field out of its base station\'s radio range', () => {
     await budget.waitFor()
     expect(await budget.getByTestId('budget-baseline').textContent()).toContain(`${after.link!.baselineKm.toFixed(1)} km to ${base.name}`)
     await budget.getByText('Planting is Closed: the field is outside the radio range').waitFor()
-    expect(await budget.getByTestId('budget-space-weather').textContent()).toMatch(/Space weather: (Kp|geomagnetic storm|no Kp forecast)/)
+    // The space-weather line follows the feed's state: a stale or missing feed says storms are unknown.
+    const feedState = ((await apiFromPage(page, '/api/space-weather')).body as SpaceWeatherStatus).state
+    const weatherLine = budget.getByTestId('budget-space-weather')
+    expect(await weatherLine.getAttribute('data-state')).toMatch(feedState === 'current' ? /^(quiet|storm|uncovered)$/ : new RegExp(`^${feedState}$`))
+    expect(await weatherLine.textContent()).toMatch(
+      feedState === 'stale'
+        ? /Space weather: space-weather forecast out of date .*storms unknown/
+        : feedState === 'none'
+          ? /Space weather: no space-weather forecast has been read, storms unknown/
+          : /Space weather: (Kp|geomagnetic storm|no Kp forecast)/,
+    )
     await page.getByTestId('sky-check').screenshot({ path: join(artifactsDir, 'corrections-sky-check-budget.png') })
 
     // The stored week after the recompute: every Planting hour Closed, out of range.
@@ -155,6 +165,14 @@ describe('a field out of its base station\'s radio range', () => {
     const states = await cells.evaluateAll((els) => els.map((e) => e.getAttribute('data-state')))
     expect(states.length).toBeGreaterThanOrEqual(24 * 6)
     expect(new Set(states)).toEqual(new Set(['closed']))
+    // Storm marks: exactly the cells of the hours whose stored flag is G3 or worse carry one, with
+    // their G level; with the feed current, the demo feed's storm day puts some in the week.
+    const stormByHour = new Map(hours.filter((h) => (h.spaceWeather?.g ?? 0) >= 3).map((h) => [Date.parse(h.time), String(h.spaceWeather!.g)]))
+    const marked = await page
+      .locator('[data-testid="hour-grid"] button.cell[data-storm]')
+      .evaluateAll((els) => els.map((e) => [e.getAttribute('data-hour') ?? '', e.getAttribute('data-storm') ?? ''] as const))
+    expect(new Map(marked.map(([iso, g]) => [Date.parse(iso), g]))).toEqual(stormByHour)
+    if (feedState === 'current') expect(stormByHour.size).toBeGreaterThan(0)
     await screenshot(page, 'corrections-outlook-out-of-range')
   }, 420_000)
 })

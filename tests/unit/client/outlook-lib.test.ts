@@ -1,7 +1,10 @@
 // Pure helpers of the Outlook and Passes pages: the cividis ramp against its published
 // table, farm-local days across daylight-saving changes, figure scales and units, and the
-// work-type limits drawn on the charts.
+// work-type limits drawn on the charts (with the baseline part, as the engine tests an hour).
 import { describe, expect, it } from 'vitest'
+import { linkEffect } from '@shared/precision'
+import { testSample, workTests } from '@shared/precision/aggregate'
+import type { SampleResults } from '@shared/precision/kernel'
 import type { ServiceLevel, WorkType } from '@shared/schemas/planning'
 import type { ForecastHour } from '@shared/schemas/forecast'
 import { chartData, dopLimits } from '@/lib/chartSeries'
@@ -194,6 +197,7 @@ describe('units', () => {
 
 describe('chart limits', () => {
   const rtk: ServiceLevel = { id: 3, name: 'RTK', sigmaUereM: 0.012, note: '', ppmH: 0, ppmV: 0, maxBaselineKm: null, needsBase: false }
+  const engineTile = { id: '4', maxH95M: 0.05, maxV95M: 0.04, minSats: 7, maxPdop: 3, requiredShare: 0.95, requireN1: true }
   const tile: WorkType = {
     id: 4,
     name: 'Tile drainage',
@@ -216,7 +220,66 @@ describe('chart limits', () => {
     expect(limits.vdop).toBeCloseTo(0.04 / (1.96 * 0.012), 6)
     expect(limits.hdop!).toBeGreaterThan(2.0)
     expect(limits.vdop!).toBeLessThan(1.75)
-    expect(dopLimits(tile, [])).toEqual({ hdop: null, vdop: null })
+    expect(dopLimits(tile, [])).toEqual({ hdop: null, vdop: null, closedReason: null })
+  })
+
+  describe('with a baseline part (ppm > 0)', () => {
+    // The demo RTK level: sigma 0.012 m, 1 mm per km both ways ("a few mm + 1 ppm", receiver
+    // data sheets; common practice, no single source), a 30 km single-base limit.
+    const rtkBase: ServiceLevel = { ...rtk, ppmH: 1, ppmV: 1, maxBaselineKm: 30, needsBase: true }
+    const link = (baselineKm: number, reachable = true) => ({ kind: 'base' as const, id: 1, name: 'Yard base', baselineKm, farthestKm: baselineKm + 0.3, reachable, baselineKnown: true })
+
+    it('shrinks the DOP limits by ppm b as the error model says: (limit / k - ppm b) / sigma', () => {
+      // b = 12 km: ppm b = 12 mm. H: (0.05 / 2 - 0.012) / 0.012 = 1.08333; V: (0.04 / 1.96 - 0.012) / 0.012 = 0.70068.
+      const limits = dopLimits(tile, [rtkBase], link(12))
+      expect(limits.hdop).toBeCloseTo(1.083333, 5)
+      expect(limits.vdop).toBeCloseTo(0.700680, 5)
+      expect(limits.closedReason).toBeNull()
+      // At the limit the expected error is the work type's maximum: 2 (0.012 x 1.08333 + 0.012) = 0.05 m.
+      expect(2 * (0.012 * limits.hdop! + 0.012)).toBeCloseTo(0.05, 12)
+      expect(chartData('dop', [hour({})], tile, [rtkBase], 'metric', link(12)).lines[0].limits).toEqual([{ name: 'HDOP limit', value: 1.08 }])
+      // A baseline whose part alone uses up the limit (b = 26 km: 2 x 26 mm > 50 mm) leaves no DOP.
+      expect(dopLimits(tile, [rtkBase], link(26)).hdop).toBe(0)
+    })
+
+    it('agrees with the engine’s test of a sample: just inside the limit meets the work type, just past it fails', () => {
+      for (const km of [0.5, 3, 12, 18]) {
+        const limits = dopLimits(tile, [rtkBase], link(km))
+        // The engine's work type for this field, as the forecast job hands it over (correctionInputs.ts).
+        const [test] = workTests([{ ...engineTile, ...linkEffect(rtkBase, link(km)) }], rtkBase.sigmaUereM)
+        const sample = (hdop: number, vdop: number): SampleResults => ({
+          nSats: Uint16Array.of(12),
+          hdop: Float64Array.of(hdop),
+          vdop: Float64Array.of(vdop),
+          pdop: Float64Array.of(1.5),
+          n1h: Float64Array.of(hdop),
+          n1v: Float64Array.of(vdop),
+          n1p: Float64Array.of(1.5),
+        })
+        const h = limits.hdop!
+        const v = limits.vdop!
+        expect(testSample(test, sample(h * (1 - 1e-9), v * (1 - 1e-9)), 0)).toBe(2)
+        expect(testSample(test, sample(h * (1 + 1e-6), v * (1 - 1e-9)), 0)).toBe(0)
+        expect(testSample(test, sample(h * (1 - 1e-9), v * (1 + 1e-6)), 0)).toBe(0)
+      }
+      // The geometry-only limit would have passed an hour the engine closes: HDOP 1.5 at 12 km.
+      const [at12] = workTests([{ ...engineTile, ...linkEffect(rtkBase, link(12)) }], rtkBase.sigmaUereM)
+      expect(1.5).toBeLessThan(dopLimits(tile, [rtk]).hdop!)
+      expect(at12.maxH).toBeLessThan(1.5)
+      expect(figureLimit(figures.hdop, [hour({ hdopMax: 1.5 })], tile, [rtkBase], 'metric', link(12))).toEqual({ need: 'HDOP at most 1.08', failing: 1, total: 1 })
+    })
+
+    it('draws no DOP limit when the link is not known, or when it closes the work type whatever the geometry', () => {
+      // Not known (the day view of several fields): the baseline part would move the limit.
+      expect(dopLimits(tile, [rtkBase])).toEqual({ hdop: null, vdop: null, closedReason: null })
+      expect(chartData('dop', [hour({})], tile, [rtkBase], 'metric').lines[0].limits).toEqual([])
+      // Out of the base's radio range: Closed (errorModel.ts linkEffect), so no DOP meets it.
+      expect(dopLimits(tile, [rtkBase], link(5, false))).toEqual({ hdop: null, vdop: null, closedReason: 'out-of-range' })
+      expect(dopLimits(tile, [rtkBase], link(31))).toEqual({ hdop: null, vdop: null, closedReason: 'baseline-limit' })
+      expect(dopLimits(tile, [rtkBase], null)).toEqual({ hdop: null, vdop: null, closedReason: 'no-source' })
+      // A level without a base ignores the link.
+      expect(dopLimits(tile, [{ ...rtkBase, needsBase: false }]).hdop).toBeCloseTo(0.05 / 0.024, 9)
+    })
   })
 
   it('draws the work type’s limits on the matching lines, errors in the user’s unit', () => {

@@ -1,12 +1,15 @@
 // Pure parts of the Fields page and its sky check: the polar projection and horizon cut
 // of the sky view, unit formats, reading where a boundary problem is, and turning the
-// API's orbit data into the engine's satellites as the worker does.
+// API's orbit data into the engine's satellites as the worker does; the sky check's
+// error budget with the Kp feed's state.
 import { describe, expect, it } from 'vitest'
 import { skyView } from '@shared/precision'
 import type { OrbitData } from '@shared/schemas/orbits'
+import type { ServiceLevel } from '@shared/schemas/planning'
 import { compassPoint, horizonCutPath, horizonPeak, markerPath, polarToXY, systemSymbols, trackPieces } from '@/components/sky/polar'
 import { formatAreaBoth, formatErrorM, formatHeight } from '@/lib/units'
 import { positionFromMessage, positionsFromData } from '@/views/fields/boundaryErrors'
+import { skyErrorBudget } from '@/views/fields/skyErrorBudget'
 import { nominalFallback, nominalName, satellitesFromOrbitData } from '@/workers/orbitSatellites'
 
 // Three records of the project's invented GPS sample (tests/fixtures/precision/orbits/gps-sample.tle).
@@ -161,5 +164,39 @@ describe('satellites from the orbit data', () => {
     expect(highPeak.elevationDeg).toBeCloseTo((Math.atan(26.5 / 40) * 180) / Math.PI, 0)
     const hidden = (v: typeof low) => v.satellites.filter((s) => s.status === 'behind-obstruction').length
     expect(hidden(high)).toBeGreaterThanOrEqual(hidden(low))
+  })
+})
+
+describe('the sky check’s error budget', () => {
+  const rtk: ServiceLevel = { id: 3, name: 'RTK', sigmaUereM: 0.012, note: '', ppmH: 1, ppmV: 1, maxBaselineKm: 30, needsBase: true }
+  const link = { kind: 'base' as const, id: 1, name: 'Yard base', baselineKm: 12, farthestKm: 12.4, reachable: true, baselineKnown: true }
+  const at = Date.UTC(2026, 11, 3, 10, 20)
+  const block = (startH: number, kp: number) => ({
+    start: new Date(Date.UTC(2026, 11, 3, startH)).toISOString(),
+    end: new Date(Date.UTC(2026, 11, 3, startH + 3)).toISOString(),
+    kp,
+    g: 0,
+    observed: false,
+  })
+  const feed = (state: 'current' | 'stale' | 'none', lastOkAt: string | null) => ({ state, lastOkAt, blocks: [block(9, 2.33)] })
+
+  it('adds the baseline part to the geometry: H95 = 2 (HDOP sigma + ppm b), V95 = 1.96 (VDOP sigma + ppm b)', () => {
+    const b = skyErrorBudget({ hdop: 0.9, vdop: 1.5 }, rtk, link, feed('current', '2026-12-03T06:00:00.000Z'), at, [])
+    // errorModel.ts: 2 x 0.9 x 0.012 = 0.0216; 2 x 1 mm/km x 12 km = 0.024; 1.96 x 1.5 x 0.012 = 0.03528; 1.96 x 12 mm = 0.02352.
+    expect(b.geometryH95M).toBeCloseTo(0.0216, 12)
+    expect(b.baselineH95M).toBeCloseTo(0.024, 12)
+    expect(b.h95M).toBeCloseTo(0.0456, 12)
+    expect(b.geometryV95M).toBeCloseTo(0.03528, 12)
+    expect(b.v95M).toBeCloseTo(0.03528 + 0.02352, 12)
+    expect(b.spaceWeather).toEqual({ kpMax: 2.33, g: 0 })
+    expect(b.spaceWeatherFeed).toEqual({ state: 'current', lastOkAt: '2026-12-03T06:00:00.000Z' })
+  })
+
+  it('carries a stale feed as stale with its last read, and no feed at all as none: storms unknown, never quiet', () => {
+    const stale = skyErrorBudget({ hdop: 0.9, vdop: 1.5 }, rtk, link, feed('stale', '2026-12-01T06:00:00.000Z'), at, [])
+    expect(stale.spaceWeatherFeed).toEqual({ state: 'stale', lastOkAt: '2026-12-01T06:00:00.000Z' })
+    const missing = skyErrorBudget({ hdop: 0.9, vdop: 1.5 }, rtk, link, null, at, [])
+    expect(missing.spaceWeather).toBeNull()
+    expect(missing.spaceWeatherFeed).toEqual({ state: 'none', lastOkAt: null })
   })
 })

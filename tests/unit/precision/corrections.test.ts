@@ -66,6 +66,47 @@ describe('geodesic baseline on WGS-84', () => {
     // An explicit choice is kept even when it is out of range (the field then warns).
     expect(chooseLink(centroid, fieldVertices(field), [{ ...sources[0], radioRangeKm: 3.9 }, sources[1]], { kind: 'base', id: 1 })).toMatchObject({ name: 'west', reachable: false })
   })
+
+  it('a network known only by its coverage is the automatic choice only when no source with a known baseline reaches', () => {
+    // The product's rule (baseline.ts; common practice, no published source): its 0 km is a
+    // missing figure, not a distance, so it must not beat a base in range.
+    const plane = localPlane(38.07, -97.83)
+    const at = (x: number, y: number): [number, number] => {
+      const p = fromPlane(plane, x, y)
+      return [p.lonDeg, p.latDeg]
+    }
+    const field: Polygon = { type: 'Polygon', coordinates: [[at(0, 0), at(800, 0), at(800, 600), at(0, 600), at(0, 0)]] }
+    const c = fromPlane(plane, 400, 300)
+    const centroid = { latDeg: c.latDeg, lonDeg: c.lonDeg }
+    const yard = fromPlane(plane, 400, 8300) // 8 km north of the centroid
+    const mount = fromPlane(plane, 400, -5700) // 6 km south
+    const base = { kind: 'base' as const, id: 1, name: 'yard', latDeg: yard.latDeg, lonDeg: yard.lonDeg, radioRangeKm: 15 }
+    const coverageOnly = {
+      kind: 'network' as const,
+      id: 7,
+      name: 'coverage only',
+      coverage: [at(-50_000, -50_000), at(50_000, -50_000), at(50_000, 50_000), at(-50_000, 50_000), at(-50_000, -50_000)],
+      mountPoints: [],
+    }
+    const vertices = fieldVertices(field)
+    // The base in range wins over the coverage-only network listed first.
+    const auto = chooseLink(centroid, vertices, [coverageOnly, base])!
+    expect(auto).toMatchObject({ kind: 'base', name: 'yard', reachable: true, baselineKnown: true })
+    expect(auto.baselineKm).toBeCloseTo(8, 1)
+    // A network with a mount point nearer than the base wins by real distance (6 km < 8 km).
+    const withMount = { ...coverageOnly, id: 8, name: 'with mount point', mountPoints: [{ latDeg: mount.latDeg, lonDeg: mount.lonDeg }] }
+    const nearer = chooseLink(centroid, vertices, [coverageOnly, base, withMount])!
+    expect(nearer).toMatchObject({ name: 'with mount point', reachable: true, baselineKnown: true })
+    expect(nearer.baselineKm).toBeCloseTo(6, 1)
+    // The base out of radio range: the coverage-only network is chosen, its baseline marked not known.
+    const short = { ...base, radioRangeKm: 5 }
+    expect(chooseLink(centroid, vertices, [short, coverageOnly])).toMatchObject({ name: 'coverage only', reachable: true, baselineKnown: false, baselineKm: 0 })
+    // Nothing reaches: the nearest source with a known baseline, unreachable, so the field warns.
+    const outside = { ...coverageOnly, coverage: [at(60_000, 0), at(70_000, 0), at(70_000, 10_000), at(60_000, 10_000), at(60_000, 0)] }
+    expect(chooseLink(centroid, vertices, [outside, short])).toMatchObject({ name: 'yard', reachable: false, baselineKnown: true })
+    expect(chooseLink(centroid, vertices, [outside])).toMatchObject({ name: 'coverage only', reachable: false, baselineKnown: false })
+    expect(chooseLink(centroid, vertices, [])).toBeNull()
+  })
 })
 
 describe('NOAA G-scale of the planetary K index', () => {
