@@ -91,19 +91,7 @@ export function createHourDetailService(ctx: ServiceContext) {
       })
       const detailPoints = result.detail?.points ?? []
       const points: HourDetailPoint[] = detailPoints.map((p) => ({
-        latDeg: p.latDeg,
-        lonDeg: p.lonDeg,
-        weightM2: p.weightM2,
-        obstructionDistanceM: p.obstructionDistanceM,
-        satellitesMin: p.satellitesMin,
-        hdopMax: p.hdopMax,
-        vdopMax: p.vdopMax,
-        pdopMax: p.pdopMax,
-        n1HdopMax: p.n1HdopMax,
-        h95MaxM: p.h95MaxM,
-        v95MaxM: p.v95MaxM,
-        noFixShare: p.noFixShare,
-        horizonMaxDeg: p.horizonMaxDeg,
+        ...p,
         workTypes: p.workTypes.map((w) => ({ workTypeId: Number(w.id), share: w.share, shareN1: w.shareN1 })),
       }))
       if (points.length === 0) throw new Error(`the engine returned no sample points for field ${field.id}`)

@@ -146,7 +146,10 @@ export interface HourAggregate {
   spaceWeather?: { kpMax: number; g: number } | null
 }
 
-/** Per-sample-point values over one hour (for a map of the field). */
+/**
+ * Per-sample-point values over one hour (for a map of the field). The hour detail's API
+ * type (HourDetailPoint in shared/schemas/passes.ts) is this one with work types by id.
+ */
 export interface PointHourDetail extends SamplePoint {
   satellitesMin: number
   hdopMax: number | null
@@ -158,6 +161,7 @@ export interface PointHourDetail extends SamplePoint {
   noFixShare: number
   /** highest elevation the obstructions block around this point (deg) */
   horizonMaxDeg: number
+  /** share (0..1) of the hour's epochs at this point meeting each work type, without and with one satellite lost */
   workTypes: Array<{ id: string; share: number; shareN1: number }>
 }
 

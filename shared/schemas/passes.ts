@@ -2,6 +2,7 @@
 // and the passes CSV export. Times are ISO 8601 in UTC; every pass also carries its farm's
 // IANA time zone so pages and exports show farm-local times.
 import { z } from 'zod'
+import type { PointHourDetail } from '../precision/types'
 import { idSchema } from './common'
 import type { HourErrorBudget } from './corrections'
 import type { HourFigures } from './forecast'
@@ -207,22 +208,9 @@ export type StoredHourFigures = HourFigures & {
   computedAt: string
 }
 
-export interface HourDetailPoint {
-  latDeg: number
-  lonDeg: number
-  weightM2: number
-  obstructionDistanceM: number | null
-  satellitesMin: number
-  hdopMax: number | null
-  vdopMax: number | null
-  pdopMax: number | null
-  n1HdopMax: number | null
-  h95MaxM: number | null
-  v95MaxM: number | null
-  noFixShare: number
-  horizonMaxDeg: number
-  /** share (0..1) of the hour's epochs at this point meeting each work type */
-  workTypes: Array<{ workTypeId: number; share: number; shareN1: number }>
+/** A sample point of the hour detail: the engine's figures of the point (PointHourDetail), its work types by id. */
+export type HourDetailPoint = Omit<PointHourDetail, 'workTypes'> & {
+  workTypes: Array<Omit<PointHourDetail['workTypes'][number], 'id'> & { workTypeId: number }>
 }
 
 export interface HourDetailSkySatellite {

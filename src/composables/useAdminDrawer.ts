@@ -75,7 +75,7 @@ export function useAdminDrawer<Row extends { id: number; name: string }, Form ex
     open.value = false
   }
 
-  return { editing, open, saving, errors, status, openCreate, openEdit, close, save, remove }
+  return { form: options.form, editing, open, saving, errors, status, openCreate, openEdit, close, save, remove }
 }
 
 /**

@@ -7,12 +7,14 @@ import { listFarms } from '@/api/farms'
 const FARMS_PAGE = 200
 
 /**
- * The farms the signed-in user may see, by name: what the Fields, Outlook and Passes
- * pages pick from. `load()` fetches them anew (pages call it when they open; the farm
+ * The farms the signed-in user may see, by name: what the Fields, Outlook, Passes, Plans
+ * and Jobs pages pick from and the account page lists. `load()` fetches them anew (pages call it when they open; the farm
  * admin page after every save or delete); the last list stays shown meanwhile.
  */
 export const useFarmsStore = defineStore('farms', () => {
   const farms = shallowRef<Farm[]>([])
+  /** how many farms the user may see (more than `farms` holds when past the first page) */
+  const total = ref(0)
   const loading = ref(false)
   const loaded = ref(false)
   let generation = 0
@@ -25,6 +27,7 @@ export const useFarmsStore = defineStore('farms', () => {
       const page = await listFarms({ pageSize: FARMS_PAGE, sort: 'name', order: 'asc' })
       if (mine === generation) {
         farms.value = page.items
+        total.value = page.total
         loaded.value = true
       }
       return farms.value
@@ -37,5 +40,5 @@ export const useFarmsStore = defineStore('farms', () => {
     return id == null ? undefined : farms.value.find((f) => f.id === id)
   }
 
-  return { farms, loading, loaded, load, byId }
+  return { farms, total, loading, loaded, load, byId }
 })

@@ -70,9 +70,10 @@ describe('admin: farms, users and the invitation mail', { timeout: 120_000 }, ()
 
     await page.getByLabel('Search farms').fill(farmName)
     await page.getByLabel('Search farms').press('Enter')
+    // The new farm is in the list from before the search too: wait for the search's answer.
+    await expect.poll(() => page.getByTestId('farms-table').locator('.ant-table-row').count(), { timeout: 30_000 }).toBe(1)
     const row = page.getByTestId('farms-table').locator('.ant-table-row', { hasText: farmName })
     await row.waitFor()
-    expect(await page.getByTestId('farms-table').locator('.ant-table-row').count()).toBe(1)
     expect(await row.textContent()).toContain('America/Winnipeg')
   })
 
