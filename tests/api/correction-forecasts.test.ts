@@ -10,12 +10,11 @@ import type { FarmForecastResponse } from '../../shared/schemas/forecast.ts'
 import type { PlanPreview } from '../../shared/schemas/plans.ts'
 import type { WorkType } from '../../shared/schemas/planning.ts'
 import type { ParsedKpBlock } from '../../server/services/spaceWeather.ts'
-import { createStore } from '../../server/db/repositories/index.ts'
 import { clearListeners } from '../../server/events.ts'
-import { startJobs, type JobsHandle } from '../../server/jobs/index.ts'
-import { createLogger } from '../../server/logger.ts'
+import type { JobsHandle } from '../../server/jobs/index.ts'
 import { planSpaceWeather } from '../../server/services/planSpaceWeather.ts'
 import { mondayOf } from '../../server/services/plansCompose.ts'
+import { startFileJobs } from '../support/fileJobs.ts'
 import { ageKpFeed, keepKpFeed, readLocalFakeFeed } from '../support/kpFeed.ts'
 import { demo, signIn, startTestServer, type Client, type TestServer } from '../support/server.ts'
 
@@ -43,16 +42,7 @@ beforeAll(async () => {
   restoreFeed = await keepKpFeed(server)
   // Read before the runner starts, so the change queues no re-forecast of every field.
   feed = await readLocalFakeFeed(server)
-  // Jobs that earlier files' servers queued and did not run are not this file's (as in forecasts.test.ts).
-  await server.database.pool.query("UPDATE jobs SET status = 'superseded', finished_at = UTC_TIMESTAMP(3) WHERE status = 'queued'")
-  jobs = await startJobs({
-    store: createStore(server.database.db),
-    // Coarser engine settings keep the test short; the code path is the production one.
-    config: { ...server.config, forecastStepMin: 15, forecastSampleCount: 16, jobConcurrency: 2 },
-    logger: createLogger('error'),
-    sweep: false,
-    schedule: false,
-  })
+  jobs = await startFileJobs(server, 2)
   const crew = await signIn(server.app, demo.contractor)
   office = await signIn(server.app, demo.office)
   south = await signIn(server.app, demo.clientSouth)

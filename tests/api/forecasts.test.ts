@@ -8,8 +8,8 @@ import { type FarmForecastResponse, type FieldForecastResponse } from '../../sha
 import type { Job } from '../../shared/schemas/jobs.ts'
 import { createStore } from '../../server/db/repositories/index.ts'
 import { clearListeners } from '../../server/events.ts'
-import { startJobs, type JobsHandle } from '../../server/jobs/index.ts'
-import { createLogger } from '../../server/logger.ts'
+import type { JobsHandle } from '../../server/jobs/index.ts'
+import { startFileJobs, until } from '../support/fileJobs.ts'
 import { ensureForecastFields, fieldWindow } from '../support/forecastFields.ts'
 import { demo, signIn, startTestServer, type Client, type TestServer } from '../support/server.ts'
 
@@ -20,33 +20,10 @@ const as: Record<'admin' | 'office' | 'contractor' | 'clientNorth' | 'clientSout
 let northField: { id: number; farmId: number }
 let southField: { id: number; farmId: number }
 
-async function until<T>(probe: () => Promise<T | null | undefined | false>, what: string, timeoutMs = 20_000): Promise<T> {
-  const end = Date.now() + timeoutMs
-  for (;;) {
-    const value = await probe()
-    if (value) return value
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`)
-    await new Promise((r) => setTimeout(r, 50))
-  }
-}
-
 beforeAll(async () => {
   server = await startTestServer()
   await ensureForecastFields(server.database.db, 1)
-  const store = createStore(server.database.db)
-  // Jobs that earlier files' servers queued and did not run (their start-up checks) are not
-  // this file's: set aside, as a newer job of the field would, so that this runner's idle
-  // means this file's jobs are done (files run one at a time).
-  await server.database.pool.query("UPDATE jobs SET status = 'superseded', finished_at = UTC_TIMESTAMP(3) WHERE status = 'queued'")
-  // Coarser engine settings keep the test short; the code path is the production one.
-  jobs = await startJobs({
-    store,
-    config: { ...server.config, forecastStepMin: 15, forecastSampleCount: 16, jobConcurrency: 2 },
-    logger: createLogger('error'),
-    sweep: false,
-    // Only this file's jobs: no nightly refresh or new-day check queues other fields meanwhile.
-    schedule: false,
-  })
+  jobs = await startFileJobs(server, 2)
   for (const key of ['admin', 'office', 'contractor', 'clientNorth', 'clientSouth'] as const) as[key] = await signIn(server.app, demo[key])
   const northFarm = (await as.clientNorth.get('/api/farms')).body.items[0].id as number
   const southFarms = ((await as.clientSouth.get('/api/farms')).body.items as { id: number }[]).map((f) => f.id)

@@ -9,6 +9,7 @@ import { runMigrations } from '../../server/db/migrate.ts'
 import { jobs } from '../../server/db/schema-planning.ts'
 import { seedDemo } from '../../seed/index.ts'
 import { freePort } from '../e2e/support.ts'
+import { until } from '../support/fileJobs.ts'
 import { ensureForecastFields } from '../support/forecastFields.ts'
 import { demo, DEMO_PASSWORD } from '../support/server.ts'
 import { killHard, queueRecomputes, signInAs, startServer, stopCleanly, type ServerProcess } from '../support/serverProcess.ts'
@@ -38,15 +39,8 @@ async function start(): Promise<ServerProcess> {
   return server
 }
 
-async function until<T>(probe: () => Promise<T | null | undefined | false>, what: string, timeoutMs = 120_000): Promise<T> {
-  const end = Date.now() + timeoutMs
-  for (;;) {
-    const v = await probe()
-    if (v) return v
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}\n${output().slice(-3000)}`)
-    await new Promise((r) => setTimeout(r, 50))
-  }
-}
+/** The servers' last output, for a wait that timed out. */
+const lastOutput = () => output().slice(-3000)
 
 beforeAll(async () => {
   if (!process.env.DATABASE_URL) throw new Error('This test needs DATABASE_URL (a migrated test database).')
@@ -78,7 +72,7 @@ describe('restart safety', () => {
       const running = rows.filter((r) => r.status === 'running')
       const done = rows.filter((r) => r.status === 'done')
       return running.length > 0 && done.length < rows.length - 2
-    }, 'jobs running on the first server')
+    }, 'jobs running on the first server', 120_000, lastOutput)
     await killHard(first)
     const leftRunning = (await ours()).filter((r) => r.status === 'running')
     expect(leftRunning.length).toBeGreaterThan(0)
@@ -89,7 +83,7 @@ describe('restart safety', () => {
       const rows = await ours()
       const open = await db.db.select().from(jobs).where(and(inArray(jobs.fieldId, fieldIds), inArray(jobs.status, ['running', 'queued'])))
       return open.length === 0 && rows.every((r) => r.status === 'done' || r.status === 'failed' || r.status === 'superseded') && rows
-    }, 'every job of the fields to finish on the second server')
+    }, 'every job of the fields to finish on the second server', 120_000, lastOutput)
     const rows = await ours()
     expect(rows.map((r) => [r.id, r.status, r.error])).toEqual(rows.map((r) => [r.id, 'done', null]))
     // The jobs the dead process held were run again by the new one.

@@ -12,6 +12,7 @@ import { runMigrations } from '../../server/db/migrate.ts'
 import { jobs } from '../../server/db/schema-planning.ts'
 import { seedDemo } from '../../seed/index.ts'
 import { freePort } from '../e2e/support.ts'
+import { until } from '../support/fileJobs.ts'
 import { ensureForecastFields } from '../support/forecastFields.ts'
 import { demo, DEMO_PASSWORD } from '../support/server.ts'
 import { groupPids, killHard, queueRecomputes, signInAs, startServer, type ServerProcess } from '../support/serverProcess.ts'
@@ -33,15 +34,8 @@ const env = () => ({
 /** The pid in a runner id (host:pid:token). */
 const pidOf = (lockedBy: string | null) => (lockedBy ? Number(lockedBy.split(':')[1]) : NaN)
 
-async function until<T>(probe: () => Promise<T | null | undefined | false>, what: string, timeoutMs = 300_000): Promise<T> {
-  const end = Date.now() + timeoutMs
-  for (;;) {
-    const v = await probe()
-    if (v) return v
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}\n${servers.map((s) => s.output().slice(-1500)).join('\n---\n')}`)
-    await new Promise((r) => setTimeout(r, 50))
-  }
-}
+/** Each process's last output, for a wait that timed out. */
+const lastOutputs = () => servers.map((s) => s.output().slice(-1500)).join('\n---\n')
 
 beforeAll(async () => {
   if (!process.env.DATABASE_URL) throw new Error('This test needs DATABASE_URL (a migrated test database).')
@@ -86,7 +80,7 @@ describe('two job processes and a page process', () => {
       const rows = await watch()
       const mine = rows.filter((r) => r.status === 'running' && aPids.has(pidOf(r.lockedBy)))
       return mine.length > 0 && rows.filter((r) => r.status === 'done').length < rows.length - 1 && mine.map((r) => r.id)
-    }, 'a job running on process A')
+    }, 'a job running on process A', 300_000, lastOutputs)
     await killHard(a)
     const stillHeld = (await ours()).filter((r) => heldByA.includes(r.id) && r.status === 'running')
     expect(stillHeld.length).toBeGreaterThan(0)
@@ -95,7 +89,7 @@ describe('two job processes and a page process', () => {
     await until(async () => {
       const rows = await watch()
       return rows.every((r) => r.status === 'done' || r.status === 'failed') && rows
-    }, 'every job to finish on process B')
+    }, 'every job to finish on process B', 300_000, lastOutputs)
     const rows = await ours()
     expect(rows.map((r) => [r.id, r.status, r.error])).toEqual(rows.map((r) => [r.id, 'done', null]))
     const killedIn = new Set(stillHeld.map((r) => r.id))
@@ -111,7 +105,7 @@ describe('two job processes and a page process', () => {
     await until(async () => {
       const open = await db.db.select().from(jobs).where(and(inArray(jobs.fieldId, fieldIds), inArray(jobs.status, ['running', 'queued'])))
       return open.length === 0
-    }, 'every job of the fields to finish')
+    }, 'every job of the fields to finish', 300_000, lastOutputs)
     await expectOneCompleteWeek(db.db, fieldIds, queued)
     // The page process still serves while jobs ran elsewhere.
     expect((await fetch(`${web.baseUrl}/api/jobs/summary`, { headers: { Cookie: cookie } })).status).toBe(200)

@@ -17,6 +17,7 @@ import { createLogger } from '../../server/logger.ts'
 import { createMailer, type Mailer, type OutgoingMail } from '../../server/mail/transport.ts'
 import { SAFETY_CAUTION } from '../../server/mail/planTemplate.ts'
 import { mondayOf } from '../../server/services/plansCompose.ts'
+import { until } from '../support/fileJobs.ts'
 import { hoursFromNow, makeField, makeMachine, planningWorld, type PlanningWorld, removeMadeRecords, storeForecast } from '../support/passes.ts'
 import { Client, createUserWithPassword, demo, startTestServer, unique, type TestServer } from '../support/server.ts'
 
@@ -58,16 +59,6 @@ async function received(to: string, subject: string, containing?: string): Promi
     out.push(await simpleParser((await server.repos.mailbox.findById(r.id))!.raw))
   }
   return containing === undefined ? out : out.filter((m) => (m.text ?? '').includes(containing))
-}
-
-async function until<T>(what: string, probe: () => Promise<T | undefined | null | false>, timeoutMs = 20_000): Promise<T> {
-  const deadline = Date.now() + timeoutMs
-  for (;;) {
-    const value = await probe()
-    if (value) return value
-    if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}`)
-    await new Promise((r) => setTimeout(r, 50))
-  }
 }
 
 const log = async (q = `farmId=${farmId}&weekStart=${weekStart}`) => (await world.office.get(`/api/plans/sends?${q}`)).body as PlanSendRow[]
@@ -175,7 +166,7 @@ describe('weekly plans', () => {
     expect(result.queued).toContain(imperialClient.email)
     expect(result.queued).not.toContain(demo.clientSouth)
     expect(result.queued).not.toContain(demo.clientNorth)
-    await until('the deliveries', async () => (await log()).every((r) => r.status === 'sent') && (await log()).length === result.queued.length)
+    await until(async () => (await log()).every((r) => r.status === 'sent') && (await log()).length === result.queued.length, 'the deliveries')
 
     const subject = (await log())[0] && (await server.repos.plans.findRevision(result.revision.id))!.subject
     const [mail, ...more] = await received(metricClient.email, subject)
@@ -243,11 +234,11 @@ describe('weekly plans', () => {
     const res = await world.office.post('/api/plans/send', { farmId, weekStart, note: 'Seed arrives Tuesday.', extraRecipients: [late] })
     expect(res.status).toBe(202)
     expect((res.body as PlanSendResult).queued).toEqual([late])
-    const failing = await until('a failed attempt', async () => (await log()).find((r) => r.recipient === late && r.error))
+    const failing = await until(async () => (await log()).find((r) => r.recipient === late && r.error), 'a failed attempt')
     expect(failing.status).toBe('queued')
     expect(failing.error).toMatch(/ECONNREFUSED|connect/i)
     target = server.mailer
-    const sent = await until('the delivery', async () => (await log()).find((r) => r.recipient === late && r.status === 'sent'))
+    const sent = await until(async () => (await log()).find((r) => r.recipient === late && r.status === 'sent'), 'the delivery')
     expect(sent.attempts).toBeGreaterThanOrEqual(2)
     expect(sent.error).toBeNull()
     await runner.idle()
@@ -265,7 +256,7 @@ describe('weekly plans', () => {
     expect(result.revision).toMatchObject({ revision: 2, created: true })
     expect(result.queued).toContain(metricClient.email)
     expect(result.queued).not.toContain(extra)
-    await until('revision 2', async () => (await log()).filter((r) => r.revision === 2).every((r) => r.status === 'sent'))
+    await until(async () => (await log()).filter((r) => r.revision === 2).every((r) => r.status === 'sent'), 'revision 2')
     const detail = (await world.office.get(`/api/plans/revisions/${result.revision.id}?recipient=${encodeURIComponent(metricClient.email)}`)).body
     // A client can tell the new plan from the one it replaces.
     expect(detail.subject).toBe(preview.subject)
@@ -285,7 +276,7 @@ describe('weekly plans', () => {
     const res = await world.office.post(`/api/plans/revisions/${rev1.revisionId}/resend`, { confirm: true, recipients: [extra] })
     expect(res.status).toBe(202)
     expect((res.body as PlanSendResult).queued).toEqual([extra])
-    await until('the resend', async () => (await log()).find((r) => r.recipient === extra && r.resend === 1 && r.status === 'sent'))
+    await until(async () => (await log()).find((r) => r.recipient === extra && r.resend === 1 && r.status === 'sent'), 'the resend')
     const subject = (await server.repos.plans.findRevision(rev1.revisionId))!.subject
     const mails = await received(extra, subject)
     expect(mails).toHaveLength(2)
@@ -339,11 +330,11 @@ describe('weekly plans', () => {
     await server.repos.plans.setLastSentWeek(farm, threeWeeksAgo)
     expect(await checkPlanSchedules(store, now)).toBeGreaterThanOrEqual(1)
     expect(await checkPlanSchedules(store, now)).toBe(0) // the job of this week exists already
-    await until('the automatic send', async () => (await server.repos.plans.schedule(farm))?.lastSentWeek === current)
-    const rows = await until('the automatic delivery', async () => {
+    await until(async () => (await server.repos.plans.schedule(farm))?.lastSentWeek === current, 'the automatic send')
+    const rows = await until(async () => {
       const r = await log(`farmId=${farm}`)
       return r.length && r.every((x) => x.status === 'sent') ? r : null
-    })
+    }, 'the automatic delivery')
     expect(rows).toHaveLength(1)
     expect(rows[0]).toMatchObject({ recipient: client.email, automatic: true, weekStart: current, sentBy: null })
     expect(await checkPlanSchedules(store, now + HOUR_MS)).toBe(0)

@@ -15,11 +15,10 @@ import { EARTH_MEAN_RADIUS_M, fromPlane, localPlane, TERRAIN_REFRACTION_K, toPla
 import type { FieldForecastResponse, ForecastHour } from '../../shared/schemas/forecast.ts'
 import type { Job } from '../../shared/schemas/jobs.ts'
 import type { HourDetail } from '../../shared/schemas/passes.ts'
-import { createStore } from '../../server/db/repositories/index.ts'
 import { jobs as jobsTable } from '../../server/db/schema-planning.ts'
 import { clearListeners } from '../../server/events.ts'
-import { startJobs, type JobsHandle } from '../../server/jobs/index.ts'
-import { createLogger } from '../../server/logger.ts'
+import type { JobsHandle } from '../../server/jobs/index.ts'
+import { startFileJobs, until } from '../support/fileJobs.ts'
 import { demo, signIn, startTestServer, unique, type Client, type TestServer } from '../support/server.ts'
 import { utmTiff } from '../support/tiff.ts'
 
@@ -44,16 +43,6 @@ let fieldId: number
 let wallCellM: number
 let slopeCellM: number
 
-async function until<T>(probe: () => Promise<T | null | undefined | false>, what: string, timeoutMs = 120_000): Promise<T> {
-  const end = Date.now() + timeoutMs
-  for (;;) {
-    const value = await probe()
-    if (value) return value
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`)
-    await new Promise((r) => setTimeout(r, 100))
-  }
-}
-
 /** The field's forecast job of `reason` once it is done (failed fails the test). */
 async function doneJob(reason: string): Promise<Job> {
   return until(async () => {
@@ -61,24 +50,14 @@ async function doneJob(reason: string): Promise<Job> {
     const job = list.find((j) => j.kind === 'forecast' && j.reason === reason)
     if (job?.status === 'failed') throw new Error(`the ${reason} job failed: ${job.error}`)
     return job?.status === 'done' ? job : null
-  }, `the field's ${reason} job`)
+  }, `the field's ${reason} job`, 120_000)
 }
 
 const forecast = async () => (await crew.get(`/api/fields/${fieldId}/forecast`)).body as FieldForecastResponse
 
 beforeAll(async () => {
   server = await startTestServer()
-  // Jobs that earlier files' servers queued and did not run are not this file's: set aside,
-  // as a newer job of their field would, so that this runner works on this file's jobs.
-  await server.database.pool.query("UPDATE jobs SET status = 'superseded', finished_at = UTC_TIMESTAMP(3) WHERE status = 'queued'")
-  // Coarser engine settings keep the test short; the code path is the production one.
-  jobs = await startJobs({
-    store: createStore(server.database.db),
-    config: { ...server.config, forecastStepMin: 15, forecastSampleCount: 16, jobConcurrency: 1 },
-    logger: createLogger('error'),
-    sweep: false,
-    schedule: false,
-  })
+  jobs = await startFileJobs(server, 1)
   admin = await signIn(server.app, demo.admin)
   crew = await signIn(server.app, demo.contractor)
   const farm = await admin.post('/api/farms', { name: unique('Steinbock Meadow '), timeZone: 'Europe/Zurich' })
